@@ -1,0 +1,61 @@
+// pcasweep/io/image.hpp — raster images in and out.
+//
+// Contract: an Image holds integer samples in their native scale (0..255 for
+// 8-bit, 0..65535 for 16-bit), interleaved, row-major: the sample of channel c
+// at column x, row y is samples[(y * width + x) * channels + c]. Readers take
+// PNG, JPEG, BMP, TGA and PNM (8- and 16-bit where the format has it) through
+// stb_image; writers produce PNG (8-bit through stb_image_write, 16-bit
+// through libpng, so 16-bit stays 16-bit). Every failure throws
+// pcasweep::Error(data) whose message starts with the file name.
+#pragma once
+
+#include <cstdint>
+#include <string>
+#include <vector>
+
+namespace pcasweep {
+
+struct Image {
+  int width = 0;
+  int height = 0;
+  int channels = 0;    // 1 gray, 2 gray+alpha, 3 RGB, 4 RGBA
+  int bit_depth = 8;   // 8 or 16
+  std::vector<std::uint16_t> samples;  // width*height*channels values
+  std::vector<std::string> channel_names;  // "gray", "alpha", "red", ...
+  bool alpha_dropped = false;  // the file had alpha and the reader removed it
+
+  double max_value() const { return bit_depth == 16 ? 65535.0 : 255.0; }
+  std::size_t sample_count() const { return samples.size(); }
+  std::uint16_t& at(int x, int y, int c) { return samples[(std::size_t(y) * width + x) * channels + c]; }
+  std::uint16_t at(int x, int y, int c) const { return samples[(std::size_t(y) * width + x) * channels + c]; }
+};
+
+struct ImageReadOptions {
+  bool drop_alpha = false;  // remove an alpha channel (gray+alpha -> gray, RGBA -> RGB)
+};
+
+// Largest image accepted, in samples (width*height*channels): 2^30, 8 GiB as doubles.
+inline constexpr std::size_t kMaxImageSamples = std::size_t(1) << 30;
+
+// Reads an image file. Returns the image with names for its channels.
+// Throws Error(data): missing file, unreadable, not an image, corrupt, too large.
+Image read_image(const std::string& path, const ImageReadOptions& options = {});
+
+// Decodes an image held in memory; `name` is used in error messages.
+Image decode_image(const std::string& bytes, const std::string& name,
+                   const ImageReadOptions& options = {});
+
+// Returns the PNG encoding of `image` (8-bit: stb_image_write; 16-bit: libpng).
+std::string encode_png(const Image& image);
+
+// Writes `image` as PNG to `path` atomically. Throws Error(data).
+void write_png(const std::string& path, const Image& image);
+
+// Names for the channels of an image with `channels` channels:
+// {"gray"}, {"gray","alpha"}, {"red","green","blue"}, {"red","green","blue","alpha"}.
+std::vector<std::string> default_channel_names(int channels);
+
+// True if the file name ends in an extension read_image understands.
+bool has_image_extension(const std::string& path);
+
+}  // namespace pcasweep

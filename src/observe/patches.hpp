@@ -1,0 +1,65 @@
+// pcasweep/observe/patches.hpp — one image cut into (possibly overlapping) patches.
+//
+// Contract: for an image of W×H with c channels, patches of ph×pw taken every
+// sy rows and sx columns. The image is first extended at the bottom and right
+// by mirror reflection (…, x[n-2], x[n-1], x[n-2], …: the edge sample is not
+// repeated) to the smallest size that the patch grid covers exactly; fold()
+// crops it back, so there are no dark borders.
+//   joint colour:    one observation per patch, d = ph·pw·c, variable order
+//                    (row, column, channel) within the patch.
+//   channels colour: each channel's patches are separate observations sharing
+//                    one basis, d = ph·pw, N = patches·c (channel-major).
+// Overlapping patches (stride < patch) are averaged when folded back.
+#pragma once
+
+#include <memory>
+
+#include "observe/layout.hpp"
+
+namespace pcasweep {
+
+enum class ColourMode { joint, channels };
+
+struct PatchOptions {
+  int patch_height = 8;
+  int patch_width = 8;
+  int stride_y = 0;  // 0 = patch_height (non-overlapping)
+  int stride_x = 0;  // 0 = patch_width
+  ColourMode colour = ColourMode::joint;
+};
+
+// Parses "8" or "8x16" (rows x columns). Throws Error(usage) naming `option`.
+void parse_size_pair(const std::string& text, const std::string& option, int& rows, int& cols);
+
+class PatchLayout : public Layout {
+ public:
+  // geometry: the image to be cut (only its size and channels are kept).
+  // Throws Error(usage) for a zero patch/stride or a patch larger than the image,
+  // naming `source_name`.
+  PatchLayout(const Image& geometry, const PatchOptions& options, const std::string& source_name);
+
+  std::string name() const override { return "patches"; }
+  std::string describe() const override;
+  Eigen::Index observation_count() const override;
+  Eigen::Index dimension() const override;
+  std::vector<std::string> variable_names() const override;
+  Eigen::MatrixXd observe(const std::vector<Image>& sources) const override;
+  std::vector<Raster> fold(const Eigen::MatrixXd& X) const override;
+
+  const PatchOptions& options() const { return options_; }
+  int padded_width() const { return padded_w_; }
+  int padded_height() const { return padded_h_; }
+  int patches_across() const { return nx_; }
+  int patches_down() const { return ny_; }
+
+ private:
+  PatchOptions options_;
+  int width_, height_, channels_;
+  int padded_w_, padded_h_;
+  int nx_, ny_;
+};
+
+// Index into [0, n) for a position p on the mirror-extended axis (period 2n−2).
+int reflect_index(long p, int n);
+
+}  // namespace pcasweep

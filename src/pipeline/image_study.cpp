@@ -1,0 +1,183 @@
+#include "pipeline/image_study.hpp"
+
+#include <algorithm>
+#include <charconv>
+#include <filesystem>
+#include <set>
+
+#include "core/error.hpp"
+#include "observe/raster.hpp"
+#include "reconstruct/reconstruct.hpp"
+#include "solve/operator.hpp"
+
+namespace pcasweep {
+
+ImageAnalysis analyze_image(const std::string& path, const ImageStudySettings& settings) {
+  Image image = read_image(path, ImageReadOptions{settings.drop_alpha});
+  auto layout = std::make_unique<PatchLayout>(image, settings.patch, path);
+  if (layout->observation_count() < 2) {
+    throw usage_error(path + ": only one patch fits; use a smaller --patch or --stride");
+  }
+  return analyze_sources({path}, {std::move(image)}, std::move(layout), settings.solver);
+}
+
+ImageAnalysis analyze_sources(std::vector<std::string> inputs, std::vector<Image> sources,
+                              std::unique_ptr<Layout> layout, const SolverSettings& solver) {
+  ImageAnalysis a;
+  a.inputs = std::move(inputs);
+  a.sources = std::move(sources);
+  for (const auto& s : a.sources) a.alpha_dropped = a.alpha_dropped || s.alpha_dropped;
+  a.layout = std::move(layout);
+  a.X = a.layout->observe(a.sources);
+  DenseOperator op(a.X);
+  a.basis = solve(op, solver);
+  return a;
+}
+
+std::vector<int> default_ks(Eigen::Index d) {
+  std::vector<int> ks;
+  for (Eigen::Index k = 1; k < d; k *= 2) ks.push_back(int(k));
+  ks.push_back(int(d));
+  return ks;
+}
+
+std::vector<int> parse_k_list(const std::string& text) {
+  std::set<int> values;
+  std::size_t start = 0;
+  while (start <= text.size()) {
+    const std::size_t comma = text.find(',', start);
+    const std::string part = text.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+    int v = 0;
+    auto [ptr, ec] = std::from_chars(part.data(), part.data() + part.size(), v);
+    if (part.empty() || ec != std::errc() || ptr != part.data() + part.size()) {
+      throw usage_error("--k takes a comma-separated list of whole numbers like 1,2,4,8, not '" + text + "'");
+    }
+    if (v < 1) throw usage_error("--k: k must be at least 1, got " + std::to_string(v));
+    values.insert(v);
+    if (comma == std::string::npos) break;
+    start = comma + 1;
+  }
+  return {values.begin(), values.end()};
+}
+
+void check_ks(const std::vector<int>& ks, Eigen::Index d) {
+  for (int k : ks) {
+    if (k < 1 || k > d) {
+      throw usage_error("--k: k = " + std::to_string(k) + " is outside 1.." + std::to_string(d) +
+                        " (d, the number of variables per observation)");
+    }
+  }
+}
+
+std::vector<SweepRow> sweep_ks(const ImageAnalysis& a, const std::vector<int>& ks, const ImageSink& on_image) {
+  check_ks(ks, a.basis.rank());
+  const Eigen::VectorXd cumulative = cumulative_proportions(a.basis);
+  const std::int64_t n = a.X.rows(), d = a.X.cols();
+  double raw = 0.0;
+  for (const auto& s : a.sources) raw += double(s.sample_count());
+  ReconstructionSweep sweep(a.basis, a.X);
+  std::vector<SweepRow> rows;
+  for (int k : ks) {
+    const Eigen::MatrixXd& xk = sweep.advance_to(k);
+    const std::vector<Raster> folded = a.layout->fold(xk);
+    SweepRow row;
+    row.k = k;
+    std::vector<Image> written;
+    for (std::size_t i = 0; i < folded.size(); ++i) {
+      std::size_t clipped = 0;
+      written.push_back(quantize(folded[i], a.sources[i], &clipped));
+      row.clipped_samples += clipped;
+    }
+    row.quality = compare_image_sets(a.sources, written);
+    row.energy_retained = cumulative(k - 1);
+    row.stored_values = std::int64_t(k) * d + n * k + d;
+    row.ratio = double(row.stored_values) / raw;
+    if (on_image)
+      for (std::size_t i = 0; i < written.size(); ++i) on_image(k, i, written[i]);
+    rows.push_back(std::move(row));
+  }
+  return rows;
+}
+
+Table spectrum_table(const Basis& basis) {
+  Table t;
+  t.columns = {"component", "eigenvalue", "proportion", "cumulative"};
+  const Eigen::VectorXd p = proportions(basis), c = cumulative_proportions(basis);
+  for (Eigen::Index i = 0; i < basis.rank(); ++i) t.add_row({std::int64_t(i + 1), basis.eigenvalues(i), p(i), c(i)});
+  return t;
+}
+
+Table sweep_table(const std::vector<SweepRow>& rows, const std::vector<std::string>& channel_names) {
+  Table t;
+  t.columns = {"k", "mse", "rmse", "psnr_db", "max_abs_error", "relative_error", "energy_retained",
+               "stored_values", "ratio"};
+  const bool per_channel = channel_names.size() > 1;
+  if (per_channel)
+    for (const auto& name : channel_names) t.columns.push_back("psnr_db_" + name);
+  for (const auto& r : rows) {
+    std::vector<Cell> cells = {std::int64_t(r.k), r.quality.mse, r.quality.rmse, r.quality.psnr_db,
+                               r.quality.max_abs_error, r.quality.relative_error, r.energy_retained,
+                               r.stored_values, r.ratio};
+    if (per_channel)
+      for (double v : r.quality.channel_psnr_db) cells.push_back(v);
+    t.add_row(std::move(cells));
+  }
+  return t;
+}
+
+nlohmann::json sweep_summary(const ImageAnalysis& a, const std::vector<SweepRow>& rows,
+                             const nlohmann::json& settings) {
+  nlohmann::json j;
+  j["tool"] = {{"name", "pcasweep"}, {"version", PCASWEEP_VERSION}};
+  const Image& first = a.image();
+  j["input"] = {{"files", a.inputs},
+                {"width", first.width},
+                {"height", first.height},
+                {"channels", first.channels},
+                {"channel_names", first.channel_names},
+                {"bit_depth", first.bit_depth},
+                {"alpha", a.alpha_dropped ? "dropped (--drop-alpha)"
+                                          : (first.channels == 2 || first.channels == 4 ? "kept as a channel"
+                                                                                       : "none")}};
+  j["settings"] = settings;
+  j["layout"] = {{"name", a.layout->name()},
+                 {"description", a.layout->describe()},
+                 {"observations", a.X.rows()},
+                 {"dimension", a.X.cols()}};
+  const Eigen::VectorXd ev = a.basis.eigenvalues;
+  j["solver"] = {{"name", a.basis.solver}, {"reason", a.basis.solver_reason}};
+  j["spectrum"] = {{"total_variance", a.basis.total_variance},
+                   {"sum_of_eigenvalues", ev.sum()},
+                   {"rows", to_json(spectrum_table(a.basis))}};
+  j["sweep"] = to_json(sweep_table(rows, first.channel_names));
+  j["size_estimate_note"] =
+      "stored_values = k*d + N*k + d counts numbers kept (basis, coefficients, mean), not bytes; "
+      "ratio = stored_values / raw samples. It is an estimate, not the size of a file.";
+  return j;
+}
+
+std::string output_stem(const std::string& path) { return std::filesystem::path(path).stem().string(); }
+
+}  // namespace pcasweep
+
+#include "io/atomic_file.hpp"
+
+namespace pcasweep {
+
+std::vector<SweepRow> write_sweep(const ImageAnalysis& a, const std::vector<int>& ks, const std::string& out_dir,
+                                  const nlohmann::json& settings) {
+  check_ks(ks, a.basis.rank());
+  std::error_code ec;
+  std::filesystem::create_directories(out_dir, ec);
+  if (ec) throw data_error(out_dir + ": cannot create output folder: " + ec.message());
+  const auto path_in = [&](const std::string& name) { return (std::filesystem::path(out_dir) / name).string(); };
+  auto rows = sweep_ks(a, ks, [&](int k, std::size_t source, const Image& image) {
+    write_png(path_in(output_stem(a.inputs[source]) + ".k" + std::to_string(k) + ".png"), image);
+  });
+  write_file_atomic(path_in("spectrum.csv"), render_csv(spectrum_table(a.basis)));
+  write_file_atomic(path_in("sweep.csv"), render_csv(sweep_table(rows, a.image().channel_names)));
+  write_file_atomic(path_in("summary.json"), sweep_summary(a, rows, settings).dump(2) + "\n");
+  return rows;
+}
+
+}  // namespace pcasweep

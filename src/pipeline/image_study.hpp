@@ -1,0 +1,100 @@
+// pcasweep/pipeline/image_study.hpp — wires the stages for one image:
+// read -> observe -> solve -> reconstruct -> measure, and lays the numbers
+// out as tables for the report stage.
+//
+// Contract: nothing here does numerical work of its own; it calls the
+// stages in order. Every validation (file, patch, k list) happens before any
+// output is written, so a bad input leaves no files behind.
+#pragma once
+
+#include <functional>
+#include <memory>
+#include <nlohmann/json.hpp>
+#include <string>
+#include <vector>
+
+#include "io/image.hpp"
+#include "measure/image_metrics.hpp"
+#include "observe/patches.hpp"
+#include "report/table.hpp"
+#include "solve/basis.hpp"
+#include "solve/solver.hpp"
+
+namespace pcasweep {
+
+struct ImageStudySettings {
+  PatchOptions patch;
+  bool drop_alpha = false;
+  SolverSettings solver;
+};
+
+struct ImageAnalysis {
+  std::vector<std::string> inputs;   // paths as given, one per source
+  std::vector<Image> sources;        // the samples analysed (alpha dropped if asked)
+  bool alpha_dropped = false;        // a file had alpha and --drop-alpha removed it
+  std::unique_ptr<Layout> layout;
+  Eigen::MatrixXd X;                 // N×d observations
+  Basis basis;
+
+  const Image& image() const { return sources.front(); }
+  const std::string& input() const { return inputs.front(); }
+};
+
+// Reads `path`, cuts it into patches and solves. Throws Error.
+ImageAnalysis analyze_image(const std::string& path, const ImageStudySettings& settings);
+
+// Observes already-read sources with `layout` and solves. Throws Error.
+ImageAnalysis analyze_sources(std::vector<std::string> inputs, std::vector<Image> sources,
+                              std::unique_ptr<Layout> layout, const SolverSettings& solver);
+
+// Default k list for dimension d: 1, 2, 4, … (powers of two below d), then d.
+std::vector<int> default_ks(Eigen::Index d);
+
+// Parses "1,2,4,8" into sorted, de-duplicated values. Throws Error(usage)
+// for anything that is not a list of positive integers.
+std::vector<int> parse_k_list(const std::string& text);
+
+// Throws Error(usage) unless every k is in [1, d].
+void check_ks(const std::vector<int>& ks, Eigen::Index d);
+
+struct SweepRow {
+  int k = 0;
+  ImageQuality quality;           // measured on the rounded, clipped image
+  double energy_retained = 0.0;   // cumulative proportion of variance at k
+  std::int64_t stored_values = 0; // k·d + N·k + d (estimate of size, not bytes)
+  double ratio = 0.0;             // stored_values / raw sample count
+  std::size_t clipped_samples = 0;
+};
+
+// For each k (ascending, each in [1, r]): reconstruct, fold, round and clip,
+// measure against the originals (all sources pooled). `on_image(k, source
+// index, image)` (optional) receives each written-to-be image. Returns one row per k.
+using ImageSink = std::function<void(int k, std::size_t source, const Image& image)>;
+std::vector<SweepRow> sweep_ks(const ImageAnalysis& analysis, const std::vector<int>& ks,
+                               const ImageSink& on_image = {});
+
+// Columns component, eigenvalue, proportion, cumulative.
+Table spectrum_table(const Basis& basis);
+
+// Columns k, mse, rmse, psnr_db, max_abs_error, relative_error, energy_retained,
+// stored_values, ratio, then psnr_db_<channel> for images with more than one channel.
+Table sweep_table(const std::vector<SweepRow>& rows, const std::vector<std::string>& channel_names);
+
+// Everything about one sweep, with the settings used.
+nlohmann::json sweep_summary(const ImageAnalysis& analysis, const std::vector<SweepRow>& rows,
+                             const nlohmann::json& settings);
+
+// File stem for outputs: "frame.png" -> "frame".
+std::string output_stem(const std::string& path);
+
+}  // namespace pcasweep
+
+namespace pcasweep {
+
+// Runs sweep_ks and writes into `out_dir` (created if missing):
+// <stem>.k<K>.png for each k (16-bit stays 16-bit), spectrum.csv, sweep.csv
+// and summary.json, each written atomically. Returns the rows.
+std::vector<SweepRow> write_sweep(const ImageAnalysis& analysis, const std::vector<int>& ks,
+                                  const std::string& out_dir, const nlohmann::json& settings);
+
+}  // namespace pcasweep

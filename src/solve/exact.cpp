@@ -1,0 +1,34 @@
+#include "solve/exact.hpp"
+
+#include <Eigen/Eigenvalues>
+
+#include "core/error.hpp"
+
+namespace pcasweep {
+
+Basis solve_exact(const CenteredOperator& op) {
+  const Eigen::Index n = op.rows();
+  if (n < 2) throw data_error("need at least 2 observations to estimate a covariance, got " + std::to_string(n));
+  const double denom = double(n - 1);
+  Eigen::MatrixXd covariance = op.scatter() / denom;
+
+  Basis basis;
+  basis.mean = op.mean();
+  basis.observation_count = n;
+  basis.variable_variances = op.column_sums_of_squares() / denom;
+  basis.total_variance = basis.variable_variances.sum();
+
+  Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> eig(covariance);
+  if (eig.info() != Eigen::Success) throw data_error("the symmetric eigensolver did not converge");
+  // Eigen returns ascending order; we want descending.
+  basis.eigenvalues = eig.eigenvalues().reverse();
+  basis.components = eig.eigenvectors().rowwise().reverse();
+  // Round-off can leave the smallest eigenvalues a hair below zero; a
+  // covariance is positive semidefinite, so clamp them to 0.
+  basis.eigenvalues = basis.eigenvalues.cwiseMax(0.0);
+  apply_sign_convention(basis.components);
+  basis.solver = "exact";
+  return basis;
+}
+
+}  // namespace pcasweep
