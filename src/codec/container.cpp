@@ -1,0 +1,266 @@
+#include "codec/container.hpp"
+
+#include <openssl/evp.h>
+#include <zlib.h>
+
+#include <bit>
+#include <cmath>
+#include <cstring>
+
+#include "core/error.hpp"
+#include "io/image.hpp"
+
+namespace pcasweep {
+
+namespace {
+
+template <typename T>
+void put(std::string& out, T value) {
+  unsigned char b[sizeof(T)];
+  std::memcpy(b, &value, sizeof(T));  // the build targets little-endian hosts (checked below)
+  out.append(reinterpret_cast<const char*>(b), sizeof(T));
+}
+static_assert(std::endian::native == std::endian::little, "container I/O assumes a little-endian host");
+
+class Reader {
+ public:
+  Reader(std::string_view bytes, const std::string& name, const char* what)
+      : bytes_(bytes), name_(name), what_(what) {}
+  template <typename T>
+  T get() {
+    if (bytes_.size() - pos_ < sizeof(T)) throw data_error(name_ + ": " + what_ + " ends early (truncated)");
+    T v;
+    std::memcpy(&v, bytes_.data() + pos_, sizeof(T));
+    pos_ += sizeof(T);
+    return v;
+  }
+  template <typename T>
+  void get_array(std::vector<T>& out, std::size_t count) {
+    if ((bytes_.size() - pos_) / sizeof(T) < count) throw data_error(name_ + ": " + what_ + " ends early (truncated)");
+    out.resize(count);
+    if (count) std::memcpy(out.data(), bytes_.data() + pos_, count * sizeof(T));
+    pos_ += count * sizeof(T);
+  }
+  std::string_view rest() const { return bytes_.substr(pos_); }
+  std::size_t position() const { return pos_; }
+
+ private:
+  std::string_view bytes_;
+  const std::string& name_;
+  const char* what_;
+  std::size_t pos_ = 0;
+};
+
+template <typename T>
+void put_array(std::string& out, const std::vector<T>& v) {
+  if (!v.empty()) out.append(reinterpret_cast<const char*>(v.data()), v.size() * sizeof(T));
+}
+
+std::uint32_t per_observation_channels(const CodedImage& c) {
+  return c.patch.colour == ColourMode::joint ? c.channels : 1u;
+}
+
+}  // namespace
+
+std::uint32_t crc32_of(std::string_view bytes) {
+  uLong crc = crc32(0L, Z_NULL, 0);
+  std::size_t pos = 0;
+  while (pos < bytes.size()) {
+    const uInt chunk = uInt(std::min<std::size_t>(bytes.size() - pos, 1u << 30));
+    crc = crc32(crc, reinterpret_cast<const Bytef*>(bytes.data() + pos), chunk);
+    pos += chunk;
+  }
+  return std::uint32_t(crc);
+}
+
+Sha256 sha256_of(std::string_view bytes) {
+  Sha256 digest{};
+  unsigned int len = 0;
+  if (!EVP_Digest(bytes.data(), bytes.size(), digest.data(), &len, EVP_sha256(), nullptr) || len != 32) {
+    throw data_error("SHA-256 computation failed in libcrypto");
+  }
+  return digest;
+}
+
+std::string to_hex(const Sha256& digest) {
+  static const char* hex = "0123456789abcdef";
+  std::string s;
+  for (std::uint8_t b : digest) {
+    s.push_back(hex[b >> 4]);
+    s.push_back(hex[b & 15]);
+  }
+  return s;
+}
+
+std::string write_container(const CodedImage& c, int zstd_level) {
+  const std::size_t m = c.coded();
+  const bool has_mean = c.basis_kind != BasisKind::external;
+  const bool has_columns = c.basis_kind == BasisKind::embedded;
+  if (c.steps.size() != m || (has_mean && c.mean_fixed.size() != c.dimension) ||
+      (has_columns && (c.column_scale.size() != m || c.column_fixed.size() != std::size_t(c.dimension) * m)) ||
+      c.coefficients.size() != std::size_t(c.observations) * m) {
+    throw usage_error("internal: coded image parts disagree with its header");
+  }
+  std::string body;
+  put_array(body, c.component_index);
+  put_array(body, c.steps);
+  if (has_mean) put_array(body, c.mean_fixed);
+  if (has_columns) {
+    put_array(body, c.column_scale);
+    put_array(body, c.column_fixed);
+  }
+  body += pack_integers(c.coefficients, c.packing);
+  const std::string frame = zstd_compress(body, zstd_level);
+
+  std::string out;
+  out.reserve(kCodedImageHeaderSize + frame.size() + 4);
+  out.append(kCodedImageMagic, 4);
+  put<std::uint16_t>(out, kCodedImageVersion);
+  put<std::uint8_t>(out, 1);  // layout: patches
+  put<std::uint8_t>(out, c.patch.colour == ColourMode::joint ? 0 : 1);
+  put<std::uint32_t>(out, c.width);
+  put<std::uint32_t>(out, c.height);
+  put<std::uint8_t>(out, c.channels);
+  put<std::uint8_t>(out, c.bit_depth);
+  put<std::uint16_t>(out, std::uint16_t(c.patch.patch_height));
+  put<std::uint16_t>(out, std::uint16_t(c.patch.patch_width));
+  put<std::uint16_t>(out, std::uint16_t(c.patch.stride_y));
+  put<std::uint16_t>(out, std::uint16_t(c.patch.stride_x));
+  put<std::uint8_t>(out, std::uint8_t(c.basis_kind));
+  put<std::uint8_t>(out, std::uint8_t(c.packing));
+  put<std::uint32_t>(out, c.dimension);
+  put<std::uint32_t>(out, c.k);
+  put<std::uint32_t>(out, std::uint32_t(m));
+  put<std::uint32_t>(out, c.observations);
+  put<double>(out, c.water_level);
+  out.append(reinterpret_cast<const char*>(c.basis_sha256.data()), 32);
+  put<std::uint64_t>(out, body.size());
+  put<std::uint64_t>(out, frame.size());
+  out += frame;
+  put<std::uint32_t>(out, crc32_of(out));
+  return out;
+}
+
+CodedImage read_container(std::string_view bytes, const std::string& name) {
+  if (bytes.size() < 4 || std::memcmp(bytes.data(), kCodedImageMagic, 4) != 0) {
+    throw data_error(name + ": not a pcasweep coded image (magic is not \"PSCI\")");
+  }
+  if (bytes.size() < kCodedImageHeaderSize + 4) throw data_error(name + ": file is truncated (" + std::to_string(bytes.size()) + " bytes)");
+  Reader h(bytes, name, "header");
+  h.get<std::uint32_t>();
+  const auto version = h.get<std::uint16_t>();
+  if (version != kCodedImageVersion) {
+    throw data_error(name + ": format version " + std::to_string(version) + " is not supported (this build reads version " +
+                     std::to_string(kCodedImageVersion) + ")");
+  }
+  std::uint32_t stored_crc;
+  std::memcpy(&stored_crc, bytes.data() + bytes.size() - 4, 4);
+  if (crc32_of(bytes.substr(0, bytes.size() - 4)) != stored_crc) {
+    throw data_error(name + ": checksum mismatch: the file is truncated or corrupt");
+  }
+  CodedImage c;
+  const auto layout_code = h.get<std::uint8_t>();
+  const auto colour = h.get<std::uint8_t>();
+  if (layout_code != 1) throw data_error(name + ": unknown layout code " + std::to_string(layout_code));
+  if (colour > 1) throw data_error(name + ": unknown colour mode code " + std::to_string(colour));
+  c.patch.colour = colour == 0 ? ColourMode::joint : ColourMode::channels;
+  c.width = h.get<std::uint32_t>();
+  c.height = h.get<std::uint32_t>();
+  c.channels = h.get<std::uint8_t>();
+  c.bit_depth = h.get<std::uint8_t>();
+  c.patch.patch_height = h.get<std::uint16_t>();
+  c.patch.patch_width = h.get<std::uint16_t>();
+  c.patch.stride_y = h.get<std::uint16_t>();
+  c.patch.stride_x = h.get<std::uint16_t>();
+  const auto kind = h.get<std::uint8_t>();
+  const auto packing = h.get<std::uint8_t>();
+  c.dimension = h.get<std::uint32_t>();
+  c.k = h.get<std::uint32_t>();
+  const std::uint32_t m = h.get<std::uint32_t>();
+  c.observations = h.get<std::uint32_t>();
+  c.water_level = h.get<double>();
+  for (auto& b : c.basis_sha256) b = h.get<std::uint8_t>();
+  const auto body_size = h.get<std::uint64_t>();
+  const auto frame_size = h.get<std::uint64_t>();
+
+  // Geometry, against caps, before any allocation.
+  if (c.width == 0 || c.height == 0 || c.channels < 1 || c.channels > 4) {
+    throw data_error(name + ": header declares an impossible image (" + std::to_string(c.width) + "x" +
+                     std::to_string(c.height) + ", " + std::to_string(c.channels) + " channels)");
+  }
+  if (std::uint64_t(c.width) * c.height * c.channels > kMaxImageSamples) {
+    throw data_error(name + ": header declares an image of " + std::to_string(c.width) + "x" + std::to_string(c.height) +
+                     "x" + std::to_string(c.channels) + " samples, above the cap of " + std::to_string(kMaxImageSamples));
+  }
+  if (c.bit_depth != 8 && c.bit_depth != 16) throw data_error(name + ": bit depth " + std::to_string(c.bit_depth) + " is not 8 or 16");
+  const auto& p = c.patch;
+  if (p.patch_height < 1 || p.patch_width < 1 || std::uint32_t(p.patch_height) > kMaxPatchSide ||
+      std::uint32_t(p.patch_width) > kMaxPatchSide || p.stride_y < 1 || p.stride_x < 1 ||
+      p.stride_y > p.patch_height || p.stride_x > p.patch_width || std::uint32_t(p.patch_height) > c.height ||
+      std::uint32_t(p.patch_width) > c.width) {
+    throw data_error(name + ": header declares an impossible patch geometry");
+  }
+  if (kind > 2) throw data_error(name + ": unknown basis kind " + std::to_string(kind));
+  c.basis_kind = BasisKind(kind);
+  if (packing != 1 && packing != 2) throw data_error(name + ": unknown coefficient packing " + std::to_string(packing));
+  c.packing = Packing(packing);
+  const std::uint64_t d = std::uint64_t(p.patch_height) * p.patch_width * per_observation_channels(c);
+  if (c.dimension != d || d > kMaxDimension) {
+    throw data_error(name + ": header declares d = " + std::to_string(c.dimension) + " but the patch geometry gives " +
+                     std::to_string(d));
+  }
+  Image geometry;
+  geometry.width = int(c.width);
+  geometry.height = int(c.height);
+  geometry.channels = c.channels;
+  const PatchLayout layout(geometry, p, name);
+  if (std::uint64_t(layout.observation_count()) != c.observations) {
+    throw data_error(name + ": header declares N = " + std::to_string(c.observations) + " observations, the geometry gives " +
+                     std::to_string(layout.observation_count()));
+  }
+  if (std::uint64_t(c.observations) * d > kMaxDecodedValues) {
+    throw data_error(name + ": decoding would need " + std::to_string(std::uint64_t(c.observations) * d) +
+                     " values, above the cap of " + std::to_string(kMaxDecodedValues));
+  }
+  if (m > d || c.k > d || m > c.k) {
+    throw data_error(name + ": header declares " + std::to_string(m) + " coded of k = " + std::to_string(c.k) +
+                     " components with d = " + std::to_string(d));
+  }
+  const std::uint64_t count = std::uint64_t(c.observations) * m;
+  const bool has_mean = c.basis_kind != BasisKind::external;
+  const bool has_columns = c.basis_kind == BasisKind::embedded;
+  const std::uint64_t fixed_part = m * 8 + (has_mean ? d * 2 : 0) + (has_columns ? m * 4 + d * m * 2 : 0);
+  const std::uint64_t packed_max = c.packing == Packing::varint ? count * 5 : 1 + count * 4;
+  const std::uint64_t packed_min = c.packing == Packing::varint ? count : 1 + count;
+  if (body_size < fixed_part + packed_min || body_size > fixed_part + packed_max) {
+    throw data_error(name + ": header declares a body of " + std::to_string(body_size) + " bytes, impossible for " +
+                     std::to_string(count) + " coefficients");
+  }
+  if (frame_size != bytes.size() - kCodedImageHeaderSize - 4) {
+    throw data_error(name + ": header declares " + std::to_string(frame_size) + " compressed bytes, the file holds " +
+                     std::to_string(bytes.size() - kCodedImageHeaderSize - 4));
+  }
+  const std::string body = zstd_decompress(bytes.substr(kCodedImageHeaderSize, frame_size), std::size_t(body_size), name);
+
+  Reader b(body, name, "body");
+  b.get_array(c.component_index, m);
+  b.get_array(c.steps, m);
+  if (has_mean) b.get_array(c.mean_fixed, std::size_t(d));
+  if (has_columns) {
+    b.get_array(c.column_scale, m);
+    b.get_array(c.column_fixed, std::size_t(d * m));
+  }
+  std::vector<bool> seen(std::size_t(d), false);
+  for (std::uint32_t i : c.component_index) {
+    if (i >= d || seen[i]) throw data_error(name + ": component list is invalid (index " + std::to_string(i) + ")");
+    seen[i] = true;
+  }
+  for (float s : c.steps)
+    if (!(s > 0.0f) || !std::isfinite(s)) throw data_error(name + ": a quantiser step is not a positive number");
+  for (float s : c.column_scale)
+    if (!(s > 0.0f) || !std::isfinite(s)) throw data_error(name + ": a basis column scale is not a positive number");
+  c.coefficients = unpack_integers(b.rest(), std::size_t(count), c.packing, name);
+  return c;
+}
+
+}  // namespace pcasweep

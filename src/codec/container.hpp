@@ -1,0 +1,78 @@
+// pcasweep/codec/container.hpp — the coded-image file (".pcsc", magic "PSCI").
+//
+// Contract: write_container() lays a CodedImage out byte by byte as
+// docs/format.md describes (little-endian, fixed 100-byte header, one zstd
+// body, CRC-32 trailer); read_container() is its inverse and treats the bytes
+// as untrusted: it checks the length and CRC-32 first, then every header
+// field against caps before anything is allocated, then the body's exact
+// length, and throws Error(data) "<name>: <what is wrong>" on any defect.
+// The container knows nothing about how the numbers were chosen.
+#pragma once
+
+#include <array>
+#include <cstdint>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "codec/entropy.hpp"
+#include "observe/patches.hpp"
+
+namespace pcasweep {
+
+inline constexpr char kCodedImageMagic[4] = {'P', 'S', 'C', 'I'};
+inline constexpr std::uint16_t kCodedImageVersion = 1;
+inline constexpr std::size_t kCodedImageHeaderSize = 100;
+
+// Where the decoder finds the basis.
+enum class BasisKind : std::uint8_t {
+  embedded = 0,  // coded columns and mean stored in the file (16-bit, see quantize.hpp)
+  external = 1,  // a basis file, identified by its SHA-256; mean and columns come from it
+  dct = 2,       // the fixed DCT-II basis (codec/dct.hpp); mean stored in the file
+};
+
+using Sha256 = std::array<std::uint8_t, 32>;
+
+struct CodedImage {
+  std::uint32_t width = 0, height = 0;
+  std::uint8_t channels = 0, bit_depth = 8;
+  PatchOptions patch;                     // strides normalised (never 0)
+  BasisKind basis_kind = BasisKind::embedded;
+  Packing packing = Packing::varint;
+  std::uint32_t dimension = 0;            // d
+  std::uint32_t k = 0;                    // components asked for
+  std::uint32_t observations = 0;         // N
+  double water_level = 0.0;               // θ (informational)
+  Sha256 basis_sha256{};                  // external only, else zeros
+  std::vector<std::uint32_t> component_index;  // m: column of the basis each coded component is
+  std::vector<float> steps;                    // m, > 0
+  std::vector<std::uint16_t> mean_fixed;       // d (embedded, dct); empty for external
+  std::vector<float> column_scale;             // m (embedded only)
+  std::vector<std::int16_t> column_fixed;      // d·m, column after column (embedded only)
+  std::vector<std::int32_t> coefficients;      // N·m, component after component
+
+  std::size_t coded() const { return component_index.size(); }
+};
+
+// Returns the file bytes. zstd_level: 1..22. Throws Error(usage) if the
+// vectors' sizes disagree with the header fields.
+std::string write_container(const CodedImage& image, int zstd_level);
+
+// Parses and validates `bytes` (untrusted). `name` is used in messages.
+CodedImage read_container(std::string_view bytes, const std::string& name);
+
+// CRC-32 (ISO-HDLC, as zlib and PNG compute it) of `bytes`.
+std::uint32_t crc32_of(std::string_view bytes);
+
+// SHA-256 (FIPS 180-4, via OpenSSL's libcrypto) of `bytes`.
+Sha256 sha256_of(std::string_view bytes);
+
+// Lower-case hex of a digest.
+std::string to_hex(const Sha256& digest);
+
+// Caps applied by every reader (a file declaring more is refused before allocation).
+inline constexpr std::uint32_t kMaxPatchSide = 1024;
+inline constexpr std::uint64_t kMaxDimension = 65536;                    // d
+inline constexpr std::uint64_t kMaxDecodedValues = std::uint64_t(1) << 28;  // N·d doubles while decoding
+
+}  // namespace pcasweep
