@@ -1,0 +1,35 @@
+// pcasweep/report/excerpt_plot.hpp — an SVG of a short stretch of a recording:
+// the original and a reconstruction overlaid, and the residual beneath.
+//
+// Contract: the caller hands over finished numbers (time axis, samples,
+// residual); this file only lays them out. One pair of panels per channel,
+// stacked: top, original (dark blue) and reconstruction (orange) on one
+// y-axis; below, the residual original − reconstruction on its own y-axis
+// (its range is usually far smaller). Returns a complete standalone SVG document.
+#pragma once
+
+#include <string>
+#include <vector>
+
+namespace pcasweep {
+
+struct ExcerptChannel {
+  std::string name;                     // "axial"
+  std::vector<double> original;         // L values
+  std::vector<double> reconstruction;   // L values
+  std::vector<double> residual;         // L values, original − reconstruction
+};
+
+struct ExcerptPlot {
+  std::string title;                    // "ternpoint_pump_vibration, k = 8"
+  std::string subtitle;                 // figures worth printing under the title
+  std::string x_label;                  // "time (s)" or "frame"
+  std::string y_label;                  // "sample value (PCM 16-bit counts)"
+  std::vector<double> x;                // L values, increasing
+  std::vector<ExcerptChannel> channels; // one per channel
+};
+
+// Returns the SVG text. Throws Error(usage) when series lengths differ from x.
+std::string render_excerpt_svg(const ExcerptPlot& plot);
+
+}  // namespace pcasweep
