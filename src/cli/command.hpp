@@ -22,6 +22,10 @@ struct Command {
 Action setup_sweep(CLI::App& sub);
 Action setup_spectrum(CLI::App& sub);
 Action setup_demo(CLI::App& sub);
+Action setup_fit(CLI::App& sub);
+Action setup_encode(CLI::App& sub);
+Action setup_decode(CLI::App& sub);
+Action setup_compare(CLI::App& sub);
 
 // Every subcommand, in the order `pcasweep --help` lists them.
 inline const Command kCommands[] = {
@@ -29,6 +33,11 @@ inline const Command kCommands[] = {
     {"spectrum", "Print the eigenvalue spectrum of an image's patches and check it against the trace",
      setup_spectrum},
     {"demo", "Run the sweep on the bundled Tern Point samples", setup_demo},
+    {"fit", "Learn a basis from one or more images and save it for encode/decode", setup_fit},
+    {"encode", "Encode an image into a compact file: k components, water-filled quantiser, zstd", setup_encode},
+    {"decode", "Decode a file written by encode (or sweep) back into a PNG", setup_decode},
+    {"compare", "Compare an image with another: MSE, PSNR and SSIM per channel (optional SSIM map)",
+     setup_compare},
 };
 
 }  // namespace pcasweep::cli
