@@ -1,5 +1,8 @@
 #include "solve/basis.hpp"
 
+#include <algorithm>
+#include <cmath>
+
 namespace pcasweep {
 
 void apply_sign_convention(Eigen::MatrixXd& components) {
@@ -28,6 +31,10 @@ Eigen::VectorXd cumulative_proportions(const Basis& basis) {
   Eigen::VectorXd p = proportions(basis);
   for (Eigen::Index i = 1; i < p.size(); ++i) p(i) += p(i - 1);
   return p;
+}
+
+double variance_beyond_rank(const Basis& basis) {
+  return std::max(0.0, basis.total_variance - basis.eigenvalues.sum());
 }
 
 }  // namespace pcasweep

@@ -9,6 +9,7 @@
 #pragma once
 
 #include <Eigen/Dense>
+#include <cstdint>
 #include <string>
 
 namespace pcasweep {
@@ -22,6 +23,24 @@ struct Basis {
   Eigen::Index observation_count = 0;  // N
   std::string solver;            // "exact" or "randomized"
   std::string solver_reason;     // why this solver ran, in words
+
+  // Filled by the randomized solver (solve/randomized.hpp); left as below by exact.
+  Eigen::Index sample_size = 0;  // l = r + oversample, test vectors actually used
+  int oversample = 0;            // p
+  int passes = 0;                // products with the data (A_c·W or A_cᵀ·Q), 2q+2 for q power iterations
+  std::uint64_t seed = 0;        // test-matrix seed
+  bool converged = true;         // adaptive rule met its tolerance (false: stopped at the pass cap)
+  double last_relative_change = 0.0;  // largest relative move of the leading r eigenvalues at the last pass
+  // ‖A_c − P·A_c‖²_F/(N−1), P the projector on the l-dimensional sampled subspace:
+  // the variance that subspace misses, = total_variance − Σ of all l captured σ²/(N−1).
+  double subspace_residual = 0.0;
+  // Rounding floor of that subtraction (Higham's γ_n·‖A_c‖²_F/(N−1), n = N + d);
+  // a residual below it is clamped to it and only "≤ floor" is known.
+  double residual_floor = 0.0;
+  // Estimated relative excess of this basis's rank-r Frobenius error over the
+  // optimal rank-r error (√(ours²/optimal²) − 1), extrapolated from the last
+  // passes' convergence; 0 for the exact solver, NaN when it cannot be estimated.
+  double optimality_gap_estimate = 0.0;
 
   Eigen::Index dimension() const { return mean.size(); }
   Eigen::Index rank() const { return eigenvalues.size(); }
@@ -37,5 +56,9 @@ Eigen::VectorXd proportions(const Basis& basis);
 
 // Cumulative proportion after each computed component. Size r.
 Eigen::VectorXd cumulative_proportions(const Basis& basis);
+
+// Variance beyond the computed rank: total_variance − Σ eigenvalues, clamped
+// at 0 (0 for a complete basis up to round-off). Returns a scalar in sample units².
+double variance_beyond_rank(const Basis& basis);
 
 }  // namespace pcasweep

@@ -1,7 +1,11 @@
 #include "solve/solver.hpp"
 
+#include <algorithm>
+#include <cstdio>
+
 #include "core/error.hpp"
 #include "solve/exact.hpp"
+#include "solve/randomized.hpp"
 
 namespace pcasweep {
 
@@ -12,14 +16,80 @@ SolverChoice parse_solver_choice(const std::string& text) {
   throw usage_error("--solver takes auto, exact or randomized, not '" + text + "'");
 }
 
+namespace {
+std::string seconds_text(double s) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.2g s", s);
+  return buf;
+}
+}  // namespace
+
+Eigen::Index default_rank(Eigen::Index n, Eigen::Index d) { return std::min<Eigen::Index>({n, d, kDefaultRank}); }
+
+CostEstimate estimate_costs(Eigen::Index n, Eigen::Index d, Eigen::Index rank, int oversample) {
+  // Flop counts of the two paths, priced at rates measured on the reference
+  // machine (docs/performance.md, "Choosing a solver").
+  const double N = double(n), D = double(d);
+  const double l = double(std::min<Eigen::Index>(rank + std::max(0, oversample), std::min(n, d)));
+  CostEstimate c;
+  c.exact_seconds = N * D * D / kScatterFlopRate + D * D * D / kEigenFlopRate;
+  c.randomized_seconds = kTypicalPasses * 2.0 * N * D * l / kProductFlopRate + kTypicalPasses * 4.0 * (N + D) * l * l / kProductFlopRate;
+  c.exact_bytes = 8.0 * D * D * 3.0;  // covariance, eigenvectors, workspace
+  return c;
+}
+
 Basis solve(const CenteredOperator& op, const SolverSettings& settings) {
-  if (settings.choice == SolverChoice::randomized) {
-    throw usage_error("--solver randomized is not available yet");
+  const Eigen::Index n = op.rows(), d = op.cols(), smallest = std::min(n, d);
+  if (n < 2) throw data_error("need at least 2 observations to estimate a covariance, got " + std::to_string(n));
+  const Eigen::Index rank = settings.rank > 0 ? settings.rank : default_rank(n, d);
+  if (rank > smallest) {
+    throw usage_error("rank " + std::to_string(rank) + " is more than min(N, d) = " + std::to_string(smallest) +
+                      " (N = " + std::to_string(n) + " observations, d = " + std::to_string(d) + " variables)");
   }
-  Basis basis = solve_exact(op);
-  basis.solver_reason = settings.choice == SolverChoice::exact
-                            ? "asked for with --solver exact"
-                            : "d = " + std::to_string(op.cols()) + " is small: the d×d covariance is cheap";
+  SolverChoice choice = settings.choice;
+  std::string reason;
+  const CostEstimate cost = estimate_costs(n, d, rank, settings.oversample);
+  if (choice == SolverChoice::exact) {
+    if (cost.exact_bytes > kExactMemoryLimit) {
+      throw usage_error("--solver exact: the " + std::to_string(d) + "x" + std::to_string(d) +
+                        " covariance would need " + std::to_string(int(cost.exact_bytes / 1073741824.0 + 0.5)) +
+                        " GiB; use --solver randomized (or auto) with --rank");
+    }
+    reason = "asked for with --solver exact";
+  } else if (choice == SolverChoice::randomized) {
+    reason = "asked for with --solver randomized";
+  } else if (cost.exact_bytes > kExactMemoryLimit) {
+    choice = SolverChoice::randomized;
+    reason = "d = " + std::to_string(d) + ": the d×d covariance would not fit in " +
+             std::to_string(int(kExactMemoryLimit / 1073741824.0)) + " GiB";
+  } else if (settings.rank == 0 && d <= kAlwaysExactDimension) {
+    choice = SolverChoice::exact;
+    reason = "d = " + std::to_string(d) + " is small: the d×d covariance is cheap and gives every component";
+  } else if (cost.randomized_seconds < kCrossoverMargin * cost.exact_seconds) {
+    choice = SolverChoice::randomized;
+    reason = "predicted " + seconds_text(cost.randomized_seconds) + " for rank " + std::to_string(rank) +
+             " against " + seconds_text(cost.exact_seconds) + " for the exact covariance (N = " + std::to_string(n) +
+             ", d = " + std::to_string(d) + ")";
+  } else {
+    choice = SolverChoice::exact;
+    reason = "predicted " + seconds_text(cost.exact_seconds) + " for the exact covariance against " +
+             seconds_text(cost.randomized_seconds) + " for rank " + std::to_string(rank) + " (N = " +
+             std::to_string(n) + ", d = " + std::to_string(d) + ")";
+  }
+  Basis basis;
+  if (choice == SolverChoice::exact) {
+    basis = solve_exact(op);
+  } else {
+    RandomizedSettings rs;
+    rs.rank = rank;
+    rs.oversample = settings.oversample;
+    rs.power_iterations = settings.power_iterations;
+    rs.seed = settings.seed;
+    if (settings.tolerance > 0.0) rs.tolerance = settings.tolerance;
+    basis = solve_randomized(op, rs);
+    if (settings.rank == 0) reason += "; rank " + std::to_string(rank) + " by default";
+  }
+  basis.solver_reason = reason;
   return basis;
 }
 

@@ -23,12 +23,45 @@ struct SolverSettings {
   int oversample = 10;            // randomized: extra test vectors p
   int power_iterations = -1;      // randomized: q; -1 = adaptive default
   std::uint64_t seed = 1;         // randomized: test-matrix seed
+  double tolerance = 0.0;         // randomized, adaptive q: stopping tolerance (0: kDefaultTolerance)
 };
+
+// Rank a truncated solver computes when SolverSettings::rank is 0.
+inline constexpr Eigen::Index kDefaultRank = 32;
+
+// How `auto` chooses (measured on the reference machine; docs/performance.md,
+// "Choosing a solver"). Exact: scatter N·d² flops at kScatterFlopRate plus the
+// symmetric eigensolver's d³ at kEigenFlopRate. Randomized: kTypicalPasses
+// products of 2·N·d·l flops at kProductFlopRate. Randomized wins when its
+// prediction is below kCrossoverMargin times the exact one.
+inline constexpr double kScatterFlopRate = 40e9;
+inline constexpr double kEigenFlopRate = 1.5e9;
+inline constexpr double kProductFlopRate = 40e9;
+inline constexpr double kTypicalPasses = 8.0;
+inline constexpr double kCrossoverMargin = 0.5;
+// Without an explicit --rank, d up to this always goes to the exact solver.
+inline constexpr Eigen::Index kAlwaysExactDimension = 2048;
+// The exact solver refuses when its d×d matrices would need more than this.
+inline constexpr double kExactMemoryLimit = 4.0 * 1073741824.0;
+
+struct CostEstimate {
+  double exact_seconds = 0.0;
+  double randomized_seconds = 0.0;
+  double exact_bytes = 0.0;
+};
+
+// n×d data, rank r wanted, oversampling p. Returns the predicted costs of both paths.
+CostEstimate estimate_costs(Eigen::Index n, Eigen::Index d, Eigen::Index rank, int oversample);
+
+// The rank used when none is asked for: min(N, d, kDefaultRank).
+Eigen::Index default_rank(Eigen::Index n, Eigen::Index d);
 
 // Parses "auto", "exact", "randomized". Throws Error(usage).
 SolverChoice parse_solver_choice(const std::string& text);
 
-// op: N×d centred data. Returns the basis; throws Error.
+// op: N×d centred data. Returns the basis, with solver and solver_reason
+// saying which ran and why. Throws Error(data) for N < 2, Error(usage) for a
+// rank above min(N, d) or an exact solve too large for memory.
 Basis solve(const CenteredOperator& op, const SolverSettings& settings);
 
 }  // namespace pcasweep
