@@ -54,7 +54,7 @@ class Rng {
  public:
   explicit Rng(std::uint64_t seed) : engine_(seed) {}
   std::uint64_t bits() { return engine_(); }
-  double uniform() { return unit_from_bits(engine_()); }                 // [0, 1)
+  double uniform() { return unit_from_bits(engine_()); }  // [0, 1)
   double uniform(double lo, double hi) { return lo + (hi - lo) * uniform(); }
   int integer(int lo, int hi) { return lo + int(uniform() * (hi - lo + 1)); }  // [lo, hi]
   // Standard normal by the Box–Muller transform; the second value is kept for the next call.
@@ -86,8 +86,8 @@ double lerp(double a, double b, double t) { return a + (b - a) * t; }
 
 // Hash of an integer lattice point to [0, 1).
 double lattice(std::int64_t ix, std::int64_t iy, std::uint64_t seed) {
-  return unit_from_bits(mix64(seed ^ mix64(std::uint64_t(ix) * 0x9E3779B97F4A7C15ull ^
-                                           mix64(std::uint64_t(iy) + 0x632BE59BD9B4E019ull))));
+  return unit_from_bits(mix64(
+      seed ^ mix64(std::uint64_t(ix) * 0x9E3779B97F4A7C15ull ^ mix64(std::uint64_t(iy) + 0x632BE59BD9B4E019ull))));
 }
 
 // Value noise in [0, 1): hashed lattice values blended with a quintic fade.
@@ -181,7 +181,6 @@ void draw_wire(Canvas& cv, double ax, double ay, double bx, double by, double sa
     const double t0 = double(i) / n, t1 = double(i + 1) / n;
     const double y0 = lerp(ay, by, t0) + 4 * sag * t0 * (1 - t0);
     const double y1 = lerp(ay, by, t1) + 4 * sag * t1 * (1 - t1);
-    // Each segment owns the half-open stretch so that joints are not painted twice.
     draw_line(cv, lerp(ax, bx, t0), y0, lerp(ax, bx, t1), y1, width, c, opacity);
   }
 }
@@ -293,11 +292,11 @@ void draw_text(Canvas& cv, double x, double y, double cell, const std::string& t
 
 struct SkyStyle {
   Rgb zenith, horizon;
-  double horizon_y;       // row of the sea horizon
-  double sun_x, sun_y;    // sun centre in pixels
-  double sun_radius;      // 0: no disc
+  double horizon_y;     // row of the sea horizon
+  double sun_x, sun_y;  // sun centre in pixels
+  double sun_radius;    // 0: no disc
   Rgb sun_color;
-  double glow_radius;     // size of the warm halo around the sun
+  double glow_radius;  // size of the warm halo around the sun
   double glow_strength;
 };
 
@@ -316,11 +315,11 @@ void paint_sky(Canvas& cv, const SkyStyle& s) {
 }
 
 struct CloudStyle {
-  double top, bottom;     // rows the cloud band covers (faded at both ends)
+  double top, bottom;       // rows the cloud band covers (faded at both ends)
   double scale_x, scale_y;  // noise frequency per pixel (stretched: layered clouds)
-  double cover;           // 0..1, more is cloudier
+  double cover;             // 0..1, more is cloudier
   double softness;
-  Rgb shadow, lit;        // cloud base colour and sun-lit edge colour
+  Rgb shadow, lit;  // cloud base colour and sun-lit edge colour
   double opacity;
   double sun_x, sun_y;
 };
@@ -394,8 +393,7 @@ void paint_headland(Canvas& cv, double horizon_y, double x0, double x1, double h
     const double t = (x - x0) / (x1 - x0);
     const double profile = std::sin(kPi * std::pow(t, 0.7)) * (0.75 + 0.5 * fbm(x * 0.03, 3.0, seed, 4));
     const double top = horizon_y - height * profile;
-    for (int y = std::max(0, int(top)); y <= int(horizon_y); ++y)
-      cv.blend(x, y, c, clamp01(y + 1.0 - top) * 0.92);
+    for (int y = std::max(0, int(top)); y <= int(horizon_y); ++y) cv.blend(x, y, c, clamp01(y + 1.0 - top) * 0.92);
   }
 }
 
@@ -449,11 +447,11 @@ struct Building {
   double x, ground, width, height;  // front face, bottom-left corner at (x, ground)
   double side;                      // width of the visible side face (to the right); 0 for none
   Rgb wall, roof, trim;
-  int roof_kind;                    // 0 flat with railing, 1 gable, 2 shed
+  int roof_kind;  // 0 flat with railing, 1 gable, 2 shed
   int window_cols, window_rows;
-  double lit_fraction;              // share of windows lit (dusk)
+  double lit_fraction;  // share of windows lit (dusk)
   Rgb glass, lamp;
-  std::string sign;                 // lettering on the front, may be empty
+  std::string sign;  // lettering on the front, may be empty
 };
 
 void draw_building(Canvas& cv, const Building& b, Rng& rng) {
@@ -461,16 +459,22 @@ void draw_building(Canvas& cv, const Building& b, Rng& rng) {
   // Side face, darker, receding up and to the right.
   if (b.side > 0) {
     const double rise = b.side * 0.35;
-    fill_polygon(cv, {{b.x + b.width, b.ground}, {b.x + b.width + b.side, b.ground - rise},
-                      {b.x + b.width + b.side, top - rise}, {b.x + b.width, top}},
+    fill_polygon(cv,
+                 {{b.x + b.width, b.ground},
+                  {b.x + b.width + b.side, b.ground - rise},
+                  {b.x + b.width + b.side, top - rise},
+                  {b.x + b.width, top}},
                  b.wall * 0.68);
     if (b.roof_kind == 1)
-      fill_polygon(cv, {{b.x + b.width * 0.5, top - b.height * 0.35}, {b.x + b.width, top},
-                        {b.x + b.width + b.side, top - rise}, {b.x + b.width * 0.5 + b.side, top - b.height * 0.35 - rise}},
+      fill_polygon(cv,
+                   {{b.x + b.width * 0.5, top - b.height * 0.35},
+                    {b.x + b.width, top},
+                    {b.x + b.width + b.side, top - rise},
+                    {b.x + b.width * 0.5 + b.side, top - b.height * 0.35 - rise}},
                    b.roof);
     else
-      fill_polygon(cv, {{b.x, top}, {b.x + b.width, top}, {b.x + b.width + b.side, top - rise},
-                        {b.x + b.side, top - rise}},
+      fill_polygon(cv,
+                   {{b.x, top}, {b.x + b.width, top}, {b.x + b.width + b.side, top - rise}, {b.x + b.side, top - rise}},
                    b.roof * 1.1);
   }
   fill_rect(cv, b.x, top, b.x + b.width, b.ground, b.wall);
@@ -478,12 +482,16 @@ void draw_building(Canvas& cv, const Building& b, Rng& rng) {
   for (double y = top + 3; y < b.ground - 1; y += 3.0) draw_line(cv, b.x, y, b.x + b.width, y, 0.5, b.wall * 0.82, 0.6);
   // Roof.
   if (b.roof_kind == 1) {
-    fill_polygon(cv, {{b.x - 2, top}, {b.x + b.width * 0.5, top - b.height * 0.35}, {b.x + b.width + 2, top}}, b.wall * 0.9);
+    fill_polygon(cv, {{b.x - 2, top}, {b.x + b.width * 0.5, top - b.height * 0.35}, {b.x + b.width + 2, top}},
+                 b.wall * 0.9);
     draw_line(cv, b.x - 3, top + 0.5, b.x + b.width * 0.5, top - b.height * 0.35, 2.0, b.roof);
     draw_line(cv, b.x + b.width * 0.5, top - b.height * 0.35, b.x + b.width + 3, top + 0.5, 2.0, b.roof);
   } else if (b.roof_kind == 2) {
-    fill_polygon(cv, {{b.x - 2, top + 1}, {b.x + b.width + 2, top - b.height * 0.18}, {b.x + b.width + 2, top - b.height * 0.18 + 3},
-                      {b.x - 2, top + 4}},
+    fill_polygon(cv,
+                 {{b.x - 2, top + 1},
+                  {b.x + b.width + 2, top - b.height * 0.18},
+                  {b.x + b.width + 2, top - b.height * 0.18 + 3},
+                  {b.x - 2, top + 4}},
                  b.roof);
   } else {
     fill_rect(cv, b.x - 1.5, top - 2.5, b.x + b.width + 1.5, top + 0.5, b.trim);
@@ -525,7 +533,7 @@ struct Mast {
   double base_width, top_width;
   Rgb color, wire;
   double wire_width;
-  bool beacon;          // red light at the top
+  bool beacon;  // red light at the top
   Rgb beacon_color;
   std::vector<double> anchors;  // ground anchor offsets from the base for the guy wires (pixels)
 };
@@ -574,8 +582,8 @@ void draw_mast(Canvas& cv, const Mast& m) {
 }
 
 // A post-and-wire fence from (x0, y0) to (x1, y1); posts shrink toward the far end (x1, y1).
-void draw_fence(Canvas& cv, double x0, double y0, double x1, double y1, int posts, double near_height, double far_height,
-                const Rgb& post_color, const Rgb& wire_color, int wires) {
+void draw_fence(Canvas& cv, double x0, double y0, double x1, double y1, int posts, double near_height,
+                double far_height, const Rgb& post_color, const Rgb& wire_color, int wires) {
   std::vector<Point> tops;
   for (int i = 0; i < posts; ++i) {
     // Perspective spacing: posts bunch together toward the far end.
@@ -597,8 +605,8 @@ void draw_fence(Canvas& cv, double x0, double y0, double x1, double y1, int post
 }
 
 // A sign board on two posts with blocky lettering, one string per line.
-void draw_sign(Canvas& cv, double x, double ground, double cell, const std::vector<std::string>& lines, const Rgb& board,
-               const Rgb& ink, const Rgb& post) {
+void draw_sign(Canvas& cv, double x, double ground, double cell, const std::vector<std::string>& lines,
+               const Rgb& board, const Rgb& ink, const Rgb& post) {
   double width = 0;
   for (const auto& l : lines) width = std::max(width, text_width(l, cell));
   const double pad = cell * 2, line_h = cell * 9;
@@ -613,16 +621,20 @@ void draw_sign(Canvas& cv, double x, double ground, double cell, const std::vect
 }
 
 // A small boat: hull polygon, cabin with windows, a short mast.
-void draw_boat(Canvas& cv, double x, double waterline, double length, const Rgb& hull, const Rgb& cabin, const Rgb& trim) {
+void draw_boat(Canvas& cv, double x, double waterline, double length, const Rgb& hull, const Rgb& cabin,
+               const Rgb& trim) {
   const double h = length * 0.16;
-  fill_polygon(cv, {{x, waterline - h}, {x + length, waterline - h * 1.25}, {x + length * 0.9, waterline},
-                    {x + length * 0.08, waterline}},
+  fill_polygon(cv,
+               {{x, waterline - h},
+                {x + length, waterline - h * 1.25},
+                {x + length * 0.9, waterline},
+                {x + length * 0.08, waterline}},
                hull);
   draw_line(cv, x, waterline - h, x + length, waterline - h * 1.25, 1.0, trim);
   fill_rect(cv, x + length * 0.3, waterline - h * 2.3, x + length * 0.62, waterline - h * 1.1, cabin);
   for (int i = 0; i < 3; ++i)
-    fill_rect(cv, x + length * (0.33 + i * 0.1), waterline - h * 2.0, x + length * (0.39 + i * 0.1), waterline - h * 1.6,
-              trim * 0.5);
+    fill_rect(cv, x + length * (0.33 + i * 0.1), waterline - h * 2.0, x + length * (0.39 + i * 0.1),
+              waterline - h * 1.6, trim * 0.5);
   draw_line(cv, x + length * 0.5, waterline - h * 2.3, x + length * 0.5, waterline - h * 5.5, 0.8, trim);
   draw_line(cv, x + length * 0.5, waterline - h * 5.5, x + length * 0.05, waterline - h * 1.05, 0.5, trim, 0.8);
   // Reflection: a darker, wobbly copy below the waterline.
@@ -653,9 +665,7 @@ void vignette(Canvas& cv, double strength) {
     }
 }
 
-std::uint16_t quantize(double v, double max_value) {
-  return std::uint16_t(std::lround(clamp01(v) * max_value));
-}
+std::uint16_t quantize(double v, double max_value) { return std::uint16_t(std::lround(clamp01(v) * max_value)); }
 
 // Canvas -> Image: `channels` 1 (gray, from the red plane), 3 (RGB) or 4 (RGB + the canvas alpha).
 pcasweep::Image to_image(const Canvas& cv, int channels, int bit_depth) {
@@ -689,13 +699,16 @@ Canvas make_dawn(Rng& rng) {
   Canvas cv(637, 411);
   const double horizon = 221;
   const double sun_x = 190, sun_y = horizon - 22;
-  SkyStyle sky{rgb(0.20, 0.29, 0.50), rgb(0.98, 0.74, 0.52), horizon, sun_x, sun_y, 9.0, rgb(1.0, 0.86, 0.62), 70.0, 0.55};
+  SkyStyle sky{
+      rgb(0.20, 0.29, 0.50), rgb(0.98, 0.74, 0.52), horizon, sun_x, sun_y, 9.0, rgb(1.0, 0.86, 0.62), 70.0, 0.55};
   paint_sky(cv, sky);
   paint_clouds(cv, {8, 150, 0.006, 0.022, 0.42, 0.12, rgb(0.45, 0.42, 0.55), rgb(1.0, 0.72, 0.62), 0.9, sun_x, sun_y},
                rng.bits());
-  paint_clouds(cv, {150, horizon - 4, 0.012, 0.09, 0.30, 0.08, rgb(0.62, 0.52, 0.58), rgb(1.0, 0.80, 0.62), 0.7, sun_x, sun_y},
-               rng.bits());
-  paint_sea(cv, {horizon, rgb(0.10, 0.20, 0.30), rgb(0.75, 0.62, 0.58), sun_x, rgb(1.0, 0.86, 0.62), 0.9, 10.0, 0.9, 0.0},
+  paint_clouds(
+      cv, {150, horizon - 4, 0.012, 0.09, 0.30, 0.08, rgb(0.62, 0.52, 0.58), rgb(1.0, 0.80, 0.62), 0.7, sun_x, sun_y},
+      rng.bits());
+  paint_sea(cv,
+            {horizon, rgb(0.10, 0.20, 0.30), rgb(0.75, 0.62, 0.58), sun_x, rgb(1.0, 0.86, 0.62), 0.9, 10.0, 0.9, 0.0},
             rng.bits());
   paint_headland(cv, horizon, 20, 140, 9, rgb(0.55, 0.50, 0.60), rng.bits());
   // The point: land rising from the bottom-left corner to a plateau at right.
@@ -712,22 +725,25 @@ Canvas make_dawn(Rng& rng) {
   paint_land(cv, dune, rgb(0.74, 0.64, 0.46), rgb(0.44, 0.42, 0.28), rgb(0.74, 0.64, 0.46), rng, rng.bits(), 0.0);
   paint_grass(cv, dune, 250, 637, 220, rgb(0.33, 0.40, 0.22), 10, 60, rng);
   // The mast stands behind the station buildings, so they hide its lower guy anchors.
-  draw_mast(cv, {448, horizon + 68, 190, 9, 3, rgb(0.22, 0.20, 0.24), rgb(0.18, 0.16, 0.20), 0.55, false, {},
-                 {-58, 62}});
+  draw_mast(cv,
+            {448, horizon + 68, 190, 9, 3, rgb(0.22, 0.20, 0.24), rgb(0.18, 0.16, 0.20), 0.55, false, {}, {-58, 62}});
   // Station buildings on the plateau.
   const Rgb glass = rgb(0.12, 0.16, 0.22), lamp = rgb(1.0, 0.85, 0.55);
-  draw_building(cv, {470, horizon + 70, 74, 30, 18, rgb(0.90, 0.88, 0.84), rgb(0.55, 0.20, 0.16), rgb(0.98, 0.98, 0.96), 1, 4, 1,
-                     0.0, glass, lamp, ""},
+  draw_building(cv,
+                {470, horizon + 70, 74, 30, 18, rgb(0.90, 0.88, 0.84), rgb(0.55, 0.20, 0.16), rgb(0.98, 0.98, 0.96), 1,
+                 4, 1, 0.0, glass, lamp, ""},
                 rng);
-  draw_building(cv, {372, horizon + 76, 66, 22, 12, rgb(0.70, 0.74, 0.78), rgb(0.30, 0.32, 0.36), rgb(0.93, 0.93, 0.93), 0, 5, 1,
-                     0.0, glass, lamp, "TERN POINT"},
+  draw_building(cv,
+                {372, horizon + 76, 66, 22, 12, rgb(0.70, 0.74, 0.78), rgb(0.30, 0.32, 0.36), rgb(0.93, 0.93, 0.93), 0,
+                 5, 1, 0.0, glass, lamp, "TERN POINT"},
                 rng);
-  draw_building(cv, {560, horizon + 73, 40, 16, 8, rgb(0.78, 0.64, 0.48), rgb(0.36, 0.28, 0.22), rgb(0.92, 0.90, 0.86), 2, 2, 1,
-                     0.0, glass, lamp, ""},
+  draw_building(cv,
+                {560, horizon + 73, 40, 16, 8, rgb(0.78, 0.64, 0.48), rgb(0.36, 0.28, 0.22), rgb(0.92, 0.90, 0.86), 2,
+                 2, 1, 0.0, glass, lamp, ""},
                 rng);
   draw_fence(cv, 300, 405, 630, horizon + 96, 16, 34, 8, rgb(0.36, 0.28, 0.22), rgb(0.30, 0.28, 0.28), 3);
-  draw_sign(cv, 468, 399, 1.6, {"TERN POINT", "FIELD STATION", "NO ENTRY"}, rgb(0.94, 0.93, 0.88), rgb(0.10, 0.22, 0.40),
-            rgb(0.35, 0.28, 0.22));
+  draw_sign(cv, 468, 399, 1.6, {"TERN POINT", "FIELD STATION", "NO ENTRY"}, rgb(0.94, 0.93, 0.88),
+            rgb(0.10, 0.22, 0.40), rgb(0.35, 0.28, 0.22));
   vignette(cv, 0.25);
   add_sensor_noise(cv, rng, 0.0045, 0.00008);
   return cv;
@@ -755,9 +771,10 @@ Canvas make_mast_nir(Rng& rng) {
   paint_land(cv, dune, gray(0.80), gray(0.56), gray(0.80), rng, rng.bits(), 0.0);
   paint_grass(cv, dune, 40, 431, 260, gray(0.93), 12, 90, rng);
   draw_mast(cv, {228, horizon + 30, 204, 14, 5, gray(0.07), gray(0.10), 0.7, false, {}, {-118, 125}});
-  draw_building(cv, {352, horizon + 36, 96, 34, 0, gray(0.72), gray(0.26), gray(0.86), 0, 4, 2, 0.0, gray(0.10), gray(0.9),
-                     "STN 07"},
-                rng);
+  draw_building(
+      cv,
+      {352, horizon + 36, 96, 34, 0, gray(0.72), gray(0.26), gray(0.86), 0, 4, 2, 0.0, gray(0.10), gray(0.9), "STN 07"},
+      rng);
   draw_fence(cv, -5, 318, 436, horizon + 62, 13, 46, 14, gray(0.16), gray(0.12), 3);
   draw_sign(cv, 40, 306, 2.0, {"MAST 2", "KEEP CLEAR"}, gray(0.86), gray(0.06), gray(0.2));
   vignette(cv, 0.2);
@@ -772,16 +789,19 @@ Canvas make_dusk16(Rng& rng) {
   Canvas cv(401, 267);
   const double horizon = 163;
   const double sun_x = 112, sun_y = horizon + 28;
-  paint_sky(cv, {rgb(0.04, 0.06, 0.19), rgb(0.96, 0.55, 0.32), horizon, sun_x, sun_y, 0.0, rgb(1.0, 0.52, 0.24), 95.0, 0.5});
+  paint_sky(
+      cv, {rgb(0.04, 0.06, 0.19), rgb(0.96, 0.55, 0.32), horizon, sun_x, sun_y, 0.0, rgb(1.0, 0.52, 0.24), 95.0, 0.5});
   // Faint stars where the sky is already dark.
   for (int i = 0; i < 70; ++i) {
     const double x = rng.uniform(0, cv.w), y = rng.uniform(0, horizon * 0.55);
     const double b = rng.uniform(0.1, 0.6) * (1.0 - y / (horizon * 0.55));
     fill_ellipse(cv, x, y, 0.7, 0.7, rgb(0.9, 0.92, 1.0), b);
   }
-  paint_clouds(cv, {30, 150, 0.0035, 0.035, 0.30, 0.12, rgb(0.22, 0.16, 0.30), rgb(1.0, 0.58, 0.48), 0.55, sun_x, sun_y},
+  paint_clouds(cv,
+               {30, 150, 0.0035, 0.035, 0.30, 0.12, rgb(0.22, 0.16, 0.30), rgb(1.0, 0.58, 0.48), 0.55, sun_x, sun_y},
                rng.bits());
-  paint_sea(cv, {horizon, rgb(0.03, 0.05, 0.12), rgb(0.62, 0.40, 0.36), sun_x, rgb(1.0, 0.55, 0.30), 0.22, 26.0, 0.3, 0.85},
+  paint_sea(cv,
+            {horizon, rgb(0.03, 0.05, 0.12), rgb(0.62, 0.40, 0.36), sun_x, rgb(1.0, 0.55, 0.30), 0.22, 26.0, 0.3, 0.85},
             rng.bits());
   paint_headland(cv, horizon, 265, 401 + 140, 20, rgb(0.10, 0.08, 0.14), rng.bits());
   const std::uint64_t land_seed = rng.bits();
@@ -790,13 +810,24 @@ Canvas make_dusk16(Rng& rng) {
   };
   paint_land(cv, shore, rgb(0.16, 0.12, 0.13), rgb(0.08, 0.06, 0.08), rgb(0.45, 0.35, 0.38), rng, rng.bits(), 0.5);
   const Rgb wall = rgb(0.09, 0.08, 0.11), glass = rgb(0.05, 0.05, 0.08), lamp = rgb(1.0, 0.74, 0.38);
-  draw_mast(cv, {285, horizon + 40, 142, 8, 3, rgb(0.05, 0.04, 0.07), rgb(0.06, 0.05, 0.08), 0.55, true,
-                 rgb(1.0, 0.12, 0.08), {-50, 56}});
-  draw_building(cv, {298, horizon + 46, 60, 24, 12, wall, rgb(0.06, 0.05, 0.07), rgb(0.12, 0.11, 0.13), 1, 4, 1, 0.7, glass,
-                     lamp, ""},
+  draw_mast(cv, {285,
+                 horizon + 40,
+                 142,
+                 8,
+                 3,
+                 rgb(0.05, 0.04, 0.07),
+                 rgb(0.06, 0.05, 0.08),
+                 0.55,
+                 true,
+                 rgb(1.0, 0.12, 0.08),
+                 {-50, 56}});
+  draw_building(cv,
+                {298, horizon + 46, 60, 24, 12, wall, rgb(0.06, 0.05, 0.07), rgb(0.12, 0.11, 0.13), 1, 4, 1, 0.7, glass,
+                 lamp, ""},
                 rng);
-  draw_building(cv, {226, horizon + 54, 52, 18, 10, wall, rgb(0.06, 0.05, 0.07), rgb(0.12, 0.11, 0.13), 0, 5, 1, 0.6, glass,
-                     lamp, ""},
+  draw_building(cv,
+                {226, horizon + 54, 52, 18, 10, wall, rgb(0.06, 0.05, 0.07), rgb(0.12, 0.11, 0.13), 0, 5, 1, 0.6, glass,
+                 lamp, ""},
                 rng);
   // A path lamp on a post with its glow.
   const double lamp_x = 268, lamp_y = horizon + 58;
@@ -828,7 +859,8 @@ Canvas make_harbour(Rng& rng) {
   Canvas cv(500, 333);
   const double horizon = 146;
   const double sun_x = 420, sun_y = -60;
-  paint_sky(cv, {rgb(0.20, 0.42, 0.76), rgb(0.76, 0.85, 0.93), horizon, sun_x, sun_y, 0.0, rgb(1.0, 0.97, 0.9), 140.0, 0.2});
+  paint_sky(
+      cv, {rgb(0.20, 0.42, 0.76), rgb(0.76, 0.85, 0.93), horizon, sun_x, sun_y, 0.0, rgb(1.0, 0.97, 0.9), 140.0, 0.2});
   paint_clouds(cv, {0, 136, 0.010, 0.017, 0.44, 0.09, rgb(0.60, 0.64, 0.72), rgb(1.0, 1.0, 1.0), 0.97, sun_x, sun_y},
                rng.bits());
   paint_sea(cv, {horizon, rgb(0.04, 0.22, 0.30), rgb(0.56, 0.68, 0.78), 400, rgb(1.0, 1.0, 0.95), 0.5, 14.0, 0.7, 0.3},
@@ -847,15 +879,18 @@ Canvas make_harbour(Rng& rng) {
   };
   paint_land(cv, shore, rgb(0.82, 0.76, 0.62), rgb(0.55, 0.50, 0.42), rgb(0.95, 0.97, 0.98), rng, rng.bits(), 0.6);
   const Rgb glass = rgb(0.10, 0.14, 0.20), lamp = rgb(1.0, 0.85, 0.55);
-  draw_building(cv, {392, horizon + 52, 84, 40, 14, rgb(0.62, 0.16, 0.14), rgb(0.25, 0.25, 0.28), rgb(0.96, 0.96, 0.94), 1, 3, 1,
-                     0.0, glass, lamp, "BOAT HOUSE"},
+  draw_building(cv,
+                {392, horizon + 52, 84, 40, 14, rgb(0.62, 0.16, 0.14), rgb(0.25, 0.25, 0.28), rgb(0.96, 0.96, 0.94), 1,
+                 3, 1, 0.0, glass, lamp, "BOAT HOUSE"},
                 rng);
-  draw_building(cv, {440, horizon + 86, 48, 22, 0, rgb(0.86, 0.86, 0.80), rgb(0.35, 0.35, 0.38), rgb(0.60, 0.60, 0.60), 2, 2, 1,
-                     0.0, glass, lamp, "TP-3"},
+  draw_building(cv,
+                {440, horizon + 86, 48, 22, 0, rgb(0.86, 0.86, 0.80), rgb(0.35, 0.35, 0.38), rgb(0.60, 0.60, 0.60), 2,
+                 2, 1, 0.0, glass, lamp, "TP-3"},
                 rng);
   // Flagpole with a flag.
   draw_line(cv, 380, horizon + 60, 380, horizon - 10, 1.0, rgb(0.85, 0.85, 0.85));
-  fill_polygon(cv, {{380.5, horizon - 10}, {398, horizon - 7}, {396, horizon + 1}, {380.5, horizon}}, rgb(0.15, 0.30, 0.65));
+  fill_polygon(cv, {{380.5, horizon - 10}, {398, horizon - 7}, {396, horizon + 1}, {380.5, horizon}},
+               rgb(0.15, 0.30, 0.65));
   // Boats moored in the harbour.
   draw_boat(cv, 60, 232, 78, rgb(0.95, 0.95, 0.93), rgb(0.85, 0.80, 0.70), rgb(0.15, 0.20, 0.35));
   draw_boat(cv, 190, 205, 50, rgb(0.15, 0.35, 0.55), rgb(0.95, 0.95, 0.92), rgb(0.2, 0.2, 0.2));
@@ -873,16 +908,15 @@ Canvas make_harbour(Rng& rng) {
   // Quay in the foreground: concrete with bollards and a painted edge.
   fill_rect(cv, 0, 300, 500, 333, rgb(0.62, 0.61, 0.58));
   for (int y = 300; y < 333; ++y)
-    for (int x = 0; x < 500; ++x)
-      cv.at(x, y) = cv.at(x, y) * (0.92 + 0.16 * fbm(x * 0.08, y * 0.2, land_seed + 7, 3));
+    for (int x = 0; x < 500; ++x) cv.at(x, y) = cv.at(x, y) * (0.92 + 0.16 * fbm(x * 0.08, y * 0.2, land_seed + 7, 3));
   fill_rect(cv, 0, 300, 500, 303, rgb(0.95, 0.82, 0.15));
   for (double x = 40; x < 500; x += 110) {
     fill_rect(cv, x, 288, x + 8, 301, rgb(0.12, 0.12, 0.14));
     fill_rect(cv, x - 2, 286, x + 10, 289, rgb(0.12, 0.12, 0.14));
   }
   draw_wire(cv, 44, 290, 110, 236, 6, 0.9, rgb(0.80, 0.75, 0.60));  // mooring line
-  draw_sign(cv, 150, 324, 1.3, {"TERN POINT HARBOUR", "NO MOORING AT JETTY"}, rgb(0.10, 0.25, 0.50), rgb(0.97, 0.97, 0.95),
-            rgb(0.3, 0.3, 0.3));
+  draw_sign(cv, 150, 324, 1.3, {"TERN POINT HARBOUR", "NO MOORING AT JETTY"}, rgb(0.10, 0.25, 0.50),
+            rgb(0.97, 0.97, 0.95), rgb(0.3, 0.3, 0.3));
   vignette(cv, 0.2);
   add_sensor_noise(cv, rng, 0.005, 0.00008);
   return cv;
@@ -941,9 +975,8 @@ Canvas make_allsky_rgba(Rng& rng) {
             rgb(0.10, 0.10, 0.12));
   for (double side : {-1.0, 1.0})
     for (double along : {0.62, 0.75})
-      draw_line(cv, cx + ux * along * radius, cy + uy * along * radius,
-                cx + std::cos(mast_az + side * 0.5) * radius, cy + std::sin(mast_az + side * 0.5) * radius, 0.6,
-                rgb(0.10, 0.10, 0.12), 0.9);
+      draw_line(cv, cx + ux * along * radius, cy + uy * along * radius, cx + std::cos(mast_az + side * 0.5) * radius,
+                cy + std::sin(mast_az + side * 0.5) * radius, 0.6, rgb(0.10, 0.10, 0.12), 0.9);
   add_sensor_noise(cv, rng, 0.006, 0.0001);
   // The lens circle: data inside, nothing outside.
   for (int y = 0; y < cv.h; ++y)
@@ -959,7 +992,8 @@ Canvas make_allsky_rgba(Rng& rng) {
 }  // namespace
 
 int main(int argc, char** argv) {
-  const std::string usage = "usage: make_samples OUTDIR [--seed N]   (default seed " + std::to_string(kDefaultSeed) + ")";
+  const std::string usage =
+      "usage: make_samples OUTDIR [--seed N]   (default seed " + std::to_string(kDefaultSeed) + ")";
   std::string out;
   std::uint64_t seed = kDefaultSeed;
   for (int i = 1; i < argc; ++i) {
@@ -1003,10 +1037,8 @@ int main(int argc, char** argv) {
       int channels, bit_depth;
     };
     const Frame frames[] = {
-        {"ternpoint_dawn_rgb.png", make_dawn, 3, 8},
-        {"ternpoint_mast_nir_gray.png", make_mast_nir, 1, 8},
-        {"ternpoint_dusk16.png", make_dusk16, 3, 16},
-        {"ternpoint_harbour_rgb.png", make_harbour, 3, 8},
+        {"ternpoint_dawn_rgb.png", make_dawn, 3, 8},           {"ternpoint_mast_nir_gray.png", make_mast_nir, 1, 8},
+        {"ternpoint_dusk16.png", make_dusk16, 3, 16},          {"ternpoint_harbour_rgb.png", make_harbour, 3, 8},
         {"ternpoint_allsky_rgba.png", make_allsky_rgba, 4, 8},
     };
     std::uint64_t index = 0;
@@ -1016,8 +1048,8 @@ int main(int argc, char** argv) {
       const Canvas cv = f.paint(rng);
       const std::string path = (std::filesystem::path(out) / f.name).string();
       pcasweep::write_png(path, to_image(cv, f.channels, f.bit_depth));
-      std::cout << "wrote " << path << " (" << cv.w << "x" << cv.h << ", " << f.channels << " channel(s), " << f.bit_depth
-                << "-bit)\n";
+      std::cout << "wrote " << path << " (" << cv.w << "x" << cv.h << ", " << f.channels << " channel(s), "
+                << f.bit_depth << "-bit)\n";
     }
   } catch (const pcasweep::Error& e) {
     std::cerr << "make_samples: " << e.what() << "\n";

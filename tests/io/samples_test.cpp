@@ -31,8 +31,8 @@ struct Promise {
 
 // What samples/README.md lists.
 const Promise kPromised[] = {
-    {"ternpoint_dawn_rgb.png", 637, 411, 3, 8},      {"ternpoint_mast_nir_gray.png", 431, 323, 1, 8},
-    {"ternpoint_dusk16.png", 401, 267, 3, 16},       {"ternpoint_harbour_rgb.png", 500, 333, 3, 8},
+    {"ternpoint_dawn_rgb.png", 637, 411, 3, 8},    {"ternpoint_mast_nir_gray.png", 431, 323, 1, 8},
+    {"ternpoint_dusk16.png", 401, 267, 3, 16},     {"ternpoint_harbour_rgb.png", 500, 333, 3, 8},
     {"ternpoint_allsky_rgba.png", 263, 247, 4, 8},
 };
 
@@ -48,7 +48,9 @@ Ihdr read_ihdr(const fs::path& path) {
   const unsigned char signature[8] = {0x89, 'P', 'N', 'G', '\r', '\n', 0x1a, '\n'};
   REQUIRE(std::equal(signature, signature + 8, b.begin()));
   REQUIRE(std::string(b.begin() + 12, b.begin() + 16) == "IHDR");
-  auto be32 = [&](int at) { return (unsigned(b[at]) << 24) | (unsigned(b[at + 1]) << 16) | (unsigned(b[at + 2]) << 8) | b[at + 3]; };
+  auto be32 = [&](int at) {
+    return (unsigned(b[at]) << 24) | (unsigned(b[at + 1]) << 16) | (unsigned(b[at + 2]) << 8) | b[at + 3];
+  };
   return {be32(16), be32(20), b[24], b[25]};
 }
 
@@ -105,7 +107,8 @@ TEST_CASE("samples: the 16-bit dusk frame uses 16-bit precision, not 8-bit value
   // An 8-bit image widened to 16 bits has every sample a multiple of 257 (v * 65535 / 255).
   const pcasweep::Image img = pcasweep::read_image((kSamples / "ternpoint_dusk16.png").string());
   REQUIRE(img.bit_depth == 16);
-  const auto widened = std::count_if(img.samples.begin(), img.samples.end(), [](std::uint16_t v) { return v % 257 == 0; });
+  const auto widened =
+      std::count_if(img.samples.begin(), img.samples.end(), [](std::uint16_t v) { return v % 257 == 0; });
   CHECK(double(widened) / img.samples.size() < 0.05);
   // One channel alone takes far more than the 256 levels that 8 bits can hold.
   std::set<std::uint16_t> red;
