@@ -1,0 +1,139 @@
+#include "cli/signal_options.hpp"
+
+#include <cmath>
+#include <iostream>
+
+#include "core/error.hpp"
+#include "pipeline/image_study.hpp"  // parse_k_list, default_ks, check_ks, spectrum_table
+
+namespace pcasweep::cli {
+
+void add_signal_options(CLI::App& sub, SignalOptionText& text) {
+  if (!sub.get_option_no_throw("--layout")) {
+    text.declared_layout = true;
+    sub.add_option("--layout", text.layout,
+                   "How the input is cut into observations; 'windows' reads it as a recording "
+                   "(default: chosen by extension, .wav .flac .ogg .aiff .csv .raw … are recordings)");
+  }
+  sub.add_option("--window", text.window, "Recordings: frames per window (default 64)");
+  sub.add_option("--hop", text.hop,
+                 "Recordings: frames between window starts, 1..window (default: the window, no overlap)");
+  sub.add_option("--taper", text.taper,
+                 "Recordings: analysis/synthesis window: rectangular, sqrt-hann, or auto (default: "
+                 "rectangular without overlap, sqrt-hann with overlap; see docs/signals.md)")
+      ->check(CLI::IsMember({"auto", "rectangular", "sqrt-hann"}));
+  sub.add_option("--channels", text.channels,
+                 "Recordings: joint (a window of all channels is one observation, default) or separate "
+                 "(each channel's windows are observations sharing one basis)")
+      ->check(CLI::IsMember({"joint", "separate"}));
+  sub.add_option("--columns", text.columns,
+                 "CSV: columns to read as channels, by header name or 1-based index, comma-separated "
+                 "(default: all)")
+      ->delimiter(',');
+  sub.add_option("--rate", text.rate, "CSV and raw: sample rate in Hz (default: 1, time axis in frames)");
+  sub.add_option("--raw", text.raw, "Read the input as headerless little-endian samples: int16 or float32")
+      ->check(CLI::IsMember({"int16", "float32"}));
+  sub.add_option("--raw-channels", text.raw_channels, "Raw: interleaved channels per frame (default 1)");
+}
+
+bool signal_input_requested(const CLI::App& sub, const SignalOptionText& text, const std::string& input) {
+  std::string layout = text.layout;
+  if (!text.declared_layout) {
+    const CLI::Option* option = sub.get_option_no_throw("--layout");
+    if (option && option->count() > 0) layout = option->as<std::string>();
+  }
+  if (!text.raw.empty()) return true;
+  return is_signal_input(input, layout);
+}
+
+SignalStudySettings signal_settings(const SignalOptionText& text) {
+  SignalStudySettings s;
+  if (text.window < 1) throw usage_error("--window must be at least 1 frame, not " + std::to_string(text.window));
+  if (text.hop == 0) {
+    throw usage_error("--hop must be at least 1 frame (the step from one window's start to the next), not 0");
+  }
+  if (text.hop < -1 || (text.hop != -1 && text.hop < 1)) {
+    throw usage_error("--hop must be at least 1 frame, not " + std::to_string(text.hop));
+  }
+  if (text.hop > text.window) {
+    throw usage_error("--hop " + std::to_string(text.hop) + " is longer than --window " +
+                      std::to_string(text.window) + ": frames between windows would be skipped");
+  }
+  s.windows.window = text.window;
+  s.windows.hop = text.hop == -1 ? 0 : text.hop;
+  s.windows.taper = parse_taper(text.taper);
+  s.windows.channels = parse_channel_mode(text.channels);
+  s.read.columns = text.columns;
+  if (text.rate < 0 || !std::isfinite(text.rate)) throw usage_error("--rate must be a positive number of Hz");
+  s.read.rate = text.rate;
+  s.read.raw_type = text.raw;
+  if (text.raw_channels < 1) throw usage_error("--raw-channels must be at least 1");
+  s.read.raw_channels = text.raw_channels;
+  return s;
+}
+
+nlohmann::json signal_settings_json(const SignalStudySettings& s) {
+  nlohmann::json j = {{"layout", "windows"},
+                      {"window", s.windows.window},
+                      {"hop", s.windows.hop ? s.windows.hop : s.windows.window},
+                      {"taper", s.windows.taper == Taper::automatic     ? "auto"
+                                : s.windows.taper == Taper::rectangular ? "rectangular"
+                                                                        : "sqrt-hann"},
+                      {"channels", s.windows.channels == ChannelMode::joint ? "joint" : "separate"}};
+  if (!s.read.columns.empty()) j["columns"] = s.read.columns;
+  if (s.read.rate > 0) j["rate_hz"] = s.read.rate;
+  if (!s.read.raw_type.empty()) {
+    j["raw"] = s.read.raw_type;
+    j["raw_channels"] = s.read.raw_channels;
+  }
+  return j;
+}
+
+std::string describe_analysis(const SignalAnalysis& a) {
+  const Signal& s = a.signal;
+  std::string rate = s.sample_rate_given ? format_real(s.sample_rate, 8) + " Hz" : "rate not given (1 Hz assumed)";
+  return a.input + ": " + describe_format(s) + ", " + describe_sample_type(s.sample_type) + ", " +
+         std::to_string(s.channels()) + " channel(s), " + std::to_string(s.frames()) + " frames, " + rate + "; " +
+         a.layout->describe() + "; N = " + std::to_string(a.X.rows()) + ", d = " + std::to_string(a.X.cols());
+}
+
+int run_signal_sweep(const std::string& input, const std::string& out, const std::string& ks_text, bool quiet,
+                     const SignalStudySettings& settings) {
+  std::vector<int> ks = ks_text.empty() ? std::vector<int>{} : parse_k_list(ks_text);
+  SignalAnalysis a = analyze_signal(input, settings);
+  if (ks.empty()) ks = default_ks(a.basis.rank());
+  check_ks(ks, a.basis.rank());
+  const auto rows = write_signal_sweep(a, ks, out, signal_settings_json(settings));
+  if (!quiet) {
+    std::cout << describe_analysis(a) << "\n" << render_console(signal_sweep_table(rows, {}, false), 4);
+    for (const auto& r : rows)
+      if (r.clipped_samples > 0)
+        std::cout << "k = " << r.k << ": " << r.clipped_samples << " sample(s) clipped to the "
+                  << describe_sample_type(a.signal.sample_type) << " range\n";
+    std::cout << "(snr_db and prd_percent use the plain energy; prd_mean_removed_percent removes each channel's "
+                 "mean; all on the stored values)\n"
+              << "wrote " << out << "/\n";
+  }
+  return 0;
+}
+
+int run_signal_spectrum(const std::string& input, int top, const SignalStudySettings& settings) {
+  const SignalAnalysis a = analyze_signal(input, settings);
+  Table table = spectrum_table(a.basis);
+  if (top > 0 && std::size_t(top) < table.rows.size()) table.rows.resize(std::size_t(top));
+  const double sum = a.basis.eigenvalues.sum();
+  const double trace = a.basis.total_variance;
+  const double rel = trace > 0 ? std::abs(sum - trace) / trace : std::abs(sum - trace);
+  std::cout << describe_analysis(a) << "; solver: " << a.basis.solver << " (" << a.basis.solver_reason << ")\n"
+            << "eigenvalues are variances of the sample covariance (divide by N-1), in sample units squared\n"
+            << render_console(table, 6) << "total variance (trace of the covariance) = " << format_real(trace)
+            << "\nsum of eigenvalues                      = " << format_real(sum)
+            << "\nrelative difference = " << format_real(rel, 3)
+            << (rel <= 1e-9 ? "  (agree: the eigenvalues share out the total variance)"
+                            : a.basis.complete() ? "  (DISAGREE beyond 1e-9: the solve lost accuracy)"
+                                                 : "  (only the leading components were computed)")
+            << "\n";
+  return rel <= 1e-9 || !a.basis.complete() ? 0 : 1;
+}
+
+}  // namespace pcasweep::cli
