@@ -1,0 +1,125 @@
+// pcasweep/pipeline/batch.hpp — the sweep over a collection of images.
+//
+// Contract: run_batch() takes the files collect_inputs() found and sweeps
+// each one, streaming: a file is read, observed, solved (per-file basis) or
+// projected on the shared basis, reconstructed at every k, measured, and
+// then dropped; only its table of figures (one row per k) is kept, so memory
+// does not grow with the number of files beyond those small tables.
+//   per-file basis: analyze_image + sweep_ks per file (pipeline/image_study.hpp).
+//   shared basis:   the training files' scatter is accumulated file by file
+//                   (solve/scatter_sum.hpp) and solved once (exact solver);
+//                   every file is then projected on that basis. Per-file
+//                   stored_values count only the file's coefficients (N·k);
+//                   the basis (k·d + d values) is counted once for the batch.
+// A file that cannot be read or swept is recorded with its reason and the
+// batch goes on. Files are swept in parallel by `threads` workers; with more
+// than one worker the linear algebra inside each file runs on one thread
+// (OpenMP and Eigen), so the cores are not oversubscribed.
+// write_batch_outputs() writes batch.csv, aggregate.csv, recommendation.csv,
+// failures.csv, summary.json and report.html (docs/batch.md), each atomically.
+#pragma once
+
+#include <cstdint>
+#include <functional>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "io/inputs.hpp"
+#include "measure/batch_stats.hpp"
+#include "pipeline/image_study.hpp"
+#include "report/table.hpp"
+
+namespace pcasweep {
+
+enum class BasisMode { per_file, shared };
+
+struct BatchSettings {
+  ImageStudySettings image;
+  std::vector<int> ks;                     // empty: default_ks(d) of each file
+  BasisMode basis = BasisMode::per_file;
+  std::vector<std::string> train_files;    // shared: the training files (empty: use train_fraction)
+  double train_fraction = 0.2;             // shared: share of the batch drawn for training
+  std::uint64_t seed = 1;                  // shared: draws the training subset
+  int threads = 1;                         // file workers (>= 1)
+  CoverageTarget target;                   // --target-psnr, --target-ssim, --coverage
+  int report_sample = 6;                   // files shown with images in report.html
+  int live_viewers = 3;                    // of those, how many get a slider
+  bool write_report = true;
+  nlohmann::json settings_json;            // echoed into summary.json
+};
+
+// Largest image the live (in-browser) viewer reconstructs; beyond it the
+// slider steps between precomputed images at the swept ks.
+inline constexpr int kLiveViewerMaxPixels = 512 * 512;
+inline constexpr int kLiveViewerMaxDimension = 192;
+
+struct FileResult {
+  std::string path;
+  bool ok = false;
+  std::string error;             // one line, when !ok
+  bool training = false;         // shared basis: the file is in the training subset
+  int width = 0, height = 0, channels = 0, bit_depth = 0;
+  std::int64_t observations = 0, dimension = 0, rank = 0;
+  double seconds = 0.0;
+  Table sweep;                   // sweep_table() of the file's rows (one per k)
+};
+
+struct SharedBasisInfo {
+  std::vector<std::string> training_files;  // in the order accumulated
+  std::vector<std::string> training_extra;  // training files that are not in the batch
+  std::int64_t observations = 0, dimension = 0;
+  Basis basis;
+};
+
+struct BatchResult {
+  CollectedInputs inputs;
+  std::vector<FileResult> files;            // in input order
+  std::optional<SharedBasisInfo> shared;
+  std::vector<InputNote> failures;          // inputs.failed + files that failed, with reasons
+  double seconds = 0.0;
+  int threads_used = 1;
+  std::string parallel_mode;                // "files" or "inner"
+  int exit_code() const { return failures.empty() ? 0 : 1; }
+};
+
+struct BatchProgress {
+  std::size_t done = 0, total = 0, failed = 0;
+  std::string phase;  // "training" or "sweep"
+  std::string last;   // the file just finished
+};
+using BatchProgressFn = std::function<void(const BatchProgress&)>;
+
+// Validates the settings (throws Error(usage) before anything is written),
+// then sweeps every file. `progress` (optional) is called after each file,
+// from one thread at a time. Returns the per-file results; never throws for
+// a bad file (it lands in `failures`), throws Error if nothing can be done
+// (no files, no training file readable).
+BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settings,
+                      const BatchProgressFn& progress = {});
+
+// The ks that appear in any file's table, ascending.
+std::vector<int> batch_ks(const BatchResult& result);
+
+// Per-file rows with a leading `file` column (and `subset` for a shared
+// basis); columns are the union of the files' sweep tables.
+Table batch_table(const BatchResult& result);
+
+// Aggregates per k and subset (all; training, held_out for a shared basis):
+// files, psnr_db min/p5/median/mean, the same for ssim where measured, size
+// totals (stored values, and bytes and mean bits per pixel where the codec
+// columns exist), files meeting the target and their share.
+Table aggregate_table(const BatchResult& result, const CoverageTarget& target);
+
+// The recommendation over all files that were swept.
+Recommendation batch_recommendation(const BatchResult& result, const CoverageTarget& target);
+
+// Writes every output into `out_dir` (created if missing). Returns the
+// summary JSON that was written.
+nlohmann::json write_batch_outputs(const BatchResult& result, const BatchSettings& settings,
+                                   const std::string& out_dir);
+
+// One line for the console: "24 files swept (1 failed, 2 skipped) in 3.1 s; k = 8 serves 96% at PSNR >= 40 dB".
+std::string batch_summary_line(const BatchResult& result, const BatchSettings& settings);
+
+}  // namespace pcasweep

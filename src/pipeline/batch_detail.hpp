@@ -1,0 +1,45 @@
+// pcasweep/pipeline/batch_detail.hpp — helpers shared by batch.cpp and batch_report.cpp (internal).
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "pipeline/batch.hpp"
+
+namespace pcasweep::detail {
+
+// Column names the batch looks for in a file's sweep table. Quality and size
+// columns added to sweep_table() by other stages flow into batch.csv as they
+// are; these are the ones the aggregates and the recommendation read.
+inline const std::string kSsimColumn = "ssim";
+inline const std::string kBytesColumn = "bytes";
+// Numbers kept (basis, coefficients, mean): "stored_values_estimate" (older tables: "stored_values").
+inline const std::string kStoredColumn = "stored_values_estimate";
+inline const std::string kStoredColumnOld = "stored_values";
+
+// requested: the --k list (empty: default_ks(rank)). Returns the ks for a file
+// whose basis has `rank` components: each k clamped to rank, de-duplicated, ascending.
+std::vector<int> file_ks(const std::vector<int>& requested, Eigen::Index rank);
+
+// Reads `path` and observes it as patches; the basis is left empty. Throws Error.
+ImageAnalysis observe_file(const std::string& path, const ImageStudySettings& settings);
+
+// Throws Error(data) if `a` does not fit the shared basis (d, bit depth).
+void check_against_shared(const ImageAnalysis& a, const SharedBasisInfo& shared, int bit_depth,
+                          const std::string& path);
+
+// Index of column `name` in t, or -1.
+int column_index(const Table& t, const std::string& name);
+// A numeric cell as double (NaN for empty or text).
+double cell_number(const Cell& c);
+// The file's row at k; for k beyond its largest k, its last row (the file is
+// then reconstructed with every component it has). nullptr if none.
+const std::vector<Cell>* row_at(const FileResult& f, int k);
+// A column's value at k (NaN when absent).
+double value_at(const FileResult& f, int k, const std::string& column);
+// Stored values at k (either column name).
+double stored_at(const FileResult& f, int k);
+// PSNR and SSIM at k.
+FileQuality quality_at(const FileResult& f, int k);
+
+}  // namespace pcasweep::detail

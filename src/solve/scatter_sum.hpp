@@ -1,0 +1,48 @@
+// pcasweep/solve/scatter_sum.hpp — a basis learned from many files without keeping them.
+//
+// Contract: a ScatterSum accumulates, file by file, the observation count n,
+// the column means μ (d) and the scatter matrix M = A_cᵀA_c (d×d) of all rows
+// added so far, merging each block with the pairwise update of Chan, Golub and
+// LeVeque (1979): for blocks a and b with δ = μ_b − μ_a and n = n_a + n_b,
+//   μ = μ_a + δ·n_b/n,   M = M_a + M_b + δδᵀ·n_a·n_b/n.
+// Each block's own M_b comes from its CenteredOperator (centred in blocks, no
+// AᵀA − nμμᵀ cancellation). Memory is O(d²), whatever the number of files.
+// As a CenteredOperator it offers only what the exact solver asks for
+// (mean, scatter, column sums of squares); apply/apply_transpose throw,
+// because no observation is kept.
+#pragma once
+
+#include "solve/operator.hpp"
+
+namespace pcasweep {
+
+class ScatterSum : public CenteredOperator {
+ public:
+  // d: the number of variables every added block must have.
+  explicit ScatterSum(Eigen::Index d);
+
+  // block: the centred view of one file's observations (n_b×d). Throws
+  // Error(usage) if its d differs.
+  void add(const CenteredOperator& block);
+
+  Eigen::Index rows() const override { return n_; }
+  Eigen::Index cols() const override { return mean_.size(); }
+  const Eigen::VectorXd& mean() const override { return mean_; }
+  // Not available: throws std::logic_error (no observations are kept).
+  Eigen::MatrixXd apply(const Eigen::MatrixXd& omega) const override;
+  Eigen::MatrixXd apply_transpose(const Eigen::MatrixXd& y) const override;
+  // Returns M, d×d.
+  Eigen::MatrixXd scatter() const override { return scatter_; }
+  // Returns diag(M), d.
+  Eigen::VectorXd column_sums_of_squares() const override { return scatter_.diagonal(); }
+  // Number of blocks (files) added.
+  int blocks() const { return blocks_; }
+
+ private:
+  Eigen::Index n_ = 0;
+  Eigen::VectorXd mean_;
+  Eigen::MatrixXd scatter_;
+  int blocks_ = 0;
+};
+
+}  // namespace pcasweep
