@@ -26,12 +26,16 @@ Action setup_fit(CLI::App& sub);
 Action setup_encode(CLI::App& sub);
 Action setup_decode(CLI::App& sub);
 Action setup_compare(CLI::App& sub);
+Action setup_batch(CLI::App& sub);
 
 // Every subcommand, in the order `pcasweep --help` lists them.
 inline const Command kCommands[] = {
     {"sweep", "Reconstruct an image at several k and measure each: tables, images, summary.json", setup_sweep},
     {"spectrum", "Print the eigenvalue spectrum of an image's patches and check it against the trace",
      setup_spectrum},
+    {"batch", "Sweep many images (files, folders, patterns, @lists): per-file or shared basis, a k for the "
+              "whole batch, report.html",
+     setup_batch},
     {"demo", "Run the sweep on the bundled Tern Point samples", setup_demo},
     {"fit", "Learn a basis from one or more images and save it for encode/decode", setup_fit},
     {"encode", "Encode an image into a compact file: k components, water-filled quantiser, zstd", setup_encode},
