@@ -8,6 +8,7 @@
 #include "cli/command.hpp"
 #include "cli/image_options.hpp"
 #include "core/error.hpp"
+#include "pipeline/batch.hpp"
 
 #ifndef PCASWEEP_SAMPLES_DIR
 #define PCASWEEP_SAMPLES_DIR "samples"
@@ -58,6 +59,21 @@ Action setup_demo(CLI::App& sub) {
     std::cout << "\n" << images.size() - failures << " of " << images.size() << " samples swept in "
               << format_real(seconds, 3) << " s; outputs in " << args->out << "/\n"
               << "(stored_values and ratio estimate size in numbers kept, not bytes)\n";
+    // The same samples as one batch (pipeline/batch.hpp): a k for all of them and report.html.
+    BatchSettings batch;
+    batch.image = settings;
+    batch.threads = 1;
+    batch.settings_json = image_settings_json(settings);
+    batch.settings_json["inputs"] = images;
+    batch.settings_json["layout_text"] = "8x8 patches (default), per-file basis";
+    CollectedInputs inputs;
+    inputs.files = images;
+    const BatchResult result = run_batch(inputs, batch);
+    const std::string batch_dir = (fs::path(args->out) / "batch").string();
+    write_batch_outputs(result, batch, batch_dir);
+    std::cout << "\nbatch: " << batch_summary_line(result, batch) << "\n"
+              << "report: " << (fs::absolute(fs::path(batch_dir) / "report.html")).string() << "\n";
+    if (!result.failures.empty()) ++failures;
     return failures ? 1 : 0;
   };
 }
