@@ -109,9 +109,9 @@ mixed = os.path.join(tmp, "mixed")
 os.makedirs(mixed)
 for i in range(4):
     write_pgm(os.path.join(mixed, f"g{i}.pgm"), rng.integers(0, 256, (32, 40)))
-corrupt = os.path.join(mixed, "broken.pgm")
+corrupt = os.path.join(mixed, "broken.png")
 with open(corrupt, "wb") as f:
-    f.write(b"P5\n32 40\n255\n" + b"\x00" * 17)  # header promises 1280 samples, 17 present
+    f.write(b"\x89PNG\r\n\x1a\n" + bytes(range(200)))  # PNG signature, then no valid chunk
 with open(os.path.join(mixed, "readme.txt"), "w") as f:
     f.write("not an image\n")
 r = run(["batch", mixed, "--out", os.path.join(tmp, "o1"), "-q", "--no-report"])
@@ -223,12 +223,21 @@ write_pgm(os.path.join(one, "m000.pgm"), base)
 
 
 def peak_rss_kib(args):
-    p = subprocess.Popen([PCASWEEP] + args, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
-    _, status, usage = os.wait4(p.pid, 0)
-    return os.waitstatus_to_exitcode(status), usage.ru_maxrss
+    """Peak RSS of pcasweep, in KiB: ru_maxrss from wait4(2) in GNU time (Debian package `time`).
+
+    Not os.wait4 from here: a child forked from this Python process keeps Python's own
+    high-water mark in its ru_maxrss across exec, which would hide pcasweep's figure."""
+    fd, report = tempfile.mkstemp(suffix=".rss")
+    os.close(fd)
+    r = subprocess.run(["/usr/bin/time", "-f", "%M", "-o", report, PCASWEEP] + args,
+                       stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    return r.returncode, int(open(report).read().split()[-1])
 
 
 common = ["-q", "--no-report", "--threads", "2"]
+if not os.path.exists("/usr/bin/time"):
+    check(False, "/usr/bin/time (Debian package `time`, in scripts/deps) is needed to measure peak RSS")
+    sys.exit(1)
 rc0, rss_idle = peak_rss_kib(["--version"])
 rc1, rss1 = peak_rss_kib(["batch", one, "--out", os.path.join(tmp, "o5a")] + common)
 rc200, rss200 = peak_rss_kib(["batch", many, "--out", os.path.join(tmp, "o5b")] + common)
