@@ -1,5 +1,6 @@
 #include "report/html.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <sstream>
@@ -309,7 +310,7 @@ std::string render_report_html(const HtmlReport& r) {
   o << "</header>\n<main>\n<section id=\"settings\"><h2>Settings and inputs</h2><dl class=\"settings\">";
   for (const auto& [label, value] : r.settings) o << "<dt>" << html_escape(label) << "</dt><dd>" << html_escape(value) << "</dd>";
   o << "</dl></section>\n";
-  for (std::size_t s = 0; s < r.sections.size(); ++s) {
+  const auto section_html = [&](std::size_t s) {
     const HtmlSection& sec = r.sections[s];
     o << "<section><h2>" << html_escape(sec.title) << "</h2>\n";
     if (!sec.intro.empty()) o << "<p>" << html_escape(sec.intro) << "</p>\n";
@@ -321,7 +322,8 @@ std::string render_report_html(const HtmlReport& r) {
     for (std::size_t t = 0; t < sec.tables.size(); ++t)
       table_html(o, sec.tables[t], t < sec.table_captions.size() ? sec.table_captions[t] : "");
     o << "</section>\n";
-  }
+  };
+  for (std::size_t s = 0; s < std::min(r.viewers_after, r.sections.size()); ++s) section_html(s);
   nlohmann::json viewer_data = nlohmann::json::array();
   if (!r.viewers.empty()) {
     o << "<section id=\"viewers\"><h2>Reconstruction at any k</h2>\n<p class=\"note\">" << html_escape(r.viewer_note)
@@ -342,7 +344,6 @@ std::string render_report_html(const HtmlReport& r) {
              "for the live viewer)</figcaption></figure>";
       }
       o << "</div>\n<div class=\"controls\"><label for=\"slider-" << id << "\">Components kept (k)</label>";
-      std::vector<int> positions;
       if (v.live) {
         o << "<input type=\"range\" id=\"slider-" << id << "\" min=\"1\" max=\"" << v.rank << "\" step=\"1\" value=\""
           << v.initial_k << "\">";
@@ -381,6 +382,7 @@ std::string render_report_html(const HtmlReport& r) {
     }
     o << "</section>\n";
   }
+  for (std::size_t s = std::min(r.viewers_after, r.sections.size()); s < r.sections.size(); ++s) section_html(s);
   if (!r.panels.empty()) {
     o << "<section id=\"files\"><h2>Files: original, reconstruction, error</h2>\n<p class=\"note\">"
       << html_escape(r.panels_note) << "</p>\n";

@@ -82,6 +82,7 @@ struct HtmlReport {
   std::vector<std::pair<std::string, std::string>> settings;  // label, value
   std::vector<std::string> headline;                          // short lines at the top (escaped)
   std::vector<HtmlSection> sections;                          // in order, after the headline
+  std::size_t viewers_after = 1;                              // sliders come after this many sections
   std::string viewer_note;
   std::vector<HtmlViewer> viewers;
   std::string panels_note;
