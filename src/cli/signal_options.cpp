@@ -46,8 +46,24 @@ bool signal_input_requested(const CLI::App& sub, const SignalOptionText& text, c
   return is_signal_input(input, layout);
 }
 
-SignalStudySettings signal_settings(const SignalOptionText& text) {
+namespace {
+// The value of `name` on `app` if declared and given on the command line, else `fallback`.
+template <typename T>
+T option_value(const CLI::App* app, const std::string& name, T fallback) {
+  if (!app) return fallback;
+  const CLI::Option* option = app->get_option_no_throw(name);
+  if (!option || option->count() == 0) return fallback;
+  return option->as<T>();
+}
+}  // namespace
+
+SignalStudySettings signal_settings(const SignalOptionText& text, const CLI::App* app) {
   SignalStudySettings s;
+  s.solver.choice = parse_solver_choice(option_value<std::string>(app, "--solver", "auto"));
+  s.solver.rank = option_value<Eigen::Index>(app, "--rank", 0);
+  s.solver.oversample = option_value<int>(app, "--oversample", s.solver.oversample);
+  s.solver.power_iterations = option_value<int>(app, "--power-iters", s.solver.power_iterations);
+  s.solver.seed = option_value<std::uint64_t>(app, "--seed", s.solver.seed);
   if (text.window < 1) throw usage_error("--window must be at least 1 frame, not " + std::to_string(text.window));
   if (text.hop == 0) {
     throw usage_error("--hop must be at least 1 frame (the step from one window's start to the next), not 0");
@@ -73,7 +89,15 @@ SignalStudySettings signal_settings(const SignalOptionText& text) {
 }
 
 nlohmann::json signal_settings_json(const SignalStudySettings& s) {
+  const char* solver = s.solver.choice == SolverChoice::exact        ? "exact"
+                       : s.solver.choice == SolverChoice::randomized ? "randomized"
+                                                                     : "auto";
   nlohmann::json j = {{"layout", "windows"},
+                      {"solver", {{"choice", solver},
+                                  {"rank", s.solver.rank},
+                                  {"oversample", s.solver.oversample},
+                                  {"power_iterations", s.solver.power_iterations},
+                                  {"seed", s.solver.seed}}},
                       {"window", s.windows.window},
                       {"hop", s.windows.hop ? s.windows.hop : s.windows.window},
                       {"taper", s.windows.taper == Taper::automatic     ? "auto"

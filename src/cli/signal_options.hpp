@@ -38,8 +38,10 @@ void add_signal_options(CLI::App& sub, SignalOptionText& text);
 bool signal_input_requested(const CLI::App& sub, const SignalOptionText& text, const std::string& input);
 
 // Turns the option text into settings. Throws Error(usage) (hop 0, window < 1, …).
-// The solver is left at its defaults; callers with solver options set settings.solver.
-SignalStudySettings signal_settings(const SignalOptionText& text);
+// The solver settings come from the options --solver, --rank, --oversample,
+// --power-iters and --seed of `app` when it declares them (the image options
+// do), else the solver defaults.
+SignalStudySettings signal_settings(const SignalOptionText& text, const CLI::App* app = nullptr);
 
 // The settings as JSON, for summary.json.
 nlohmann::json signal_settings_json(const SignalStudySettings& settings);

@@ -145,6 +145,29 @@ void check_size(std::size_t frames, std::size_t channels, const std::string& pat
   }
 }
 
+// Channel names travel in the file's comment string as
+// "pcasweep channels: axial, radial, tacho" (our own convention; other
+// comments are ignored). Returns the names, or nothing if absent or the
+// count differs from `channels`.
+constexpr const char* kChannelComment = "pcasweep channels: ";
+
+std::vector<std::string> parse_channel_names_comment(const std::string& comment, int channels) {
+  if (comment.rfind(kChannelComment, 0) != 0) return {};
+  std::vector<std::string> names;
+  std::size_t start = std::strlen(kChannelComment);
+  while (start <= comment.size()) {
+    std::size_t comma = comment.find(',', start);
+    if (comma == std::string::npos) comma = comment.size();
+    std::string name = comment.substr(start, comma - start);
+    while (!name.empty() && name.front() == ' ') name.erase(name.begin());
+    while (!name.empty() && name.back() == ' ') name.pop_back();
+    if (name.empty()) return {};
+    names.push_back(name);
+    start = comma + 1;
+  }
+  return int(names.size()) == channels ? names : std::vector<std::string>{};
+}
+
 Signal read_sndfile(const std::string& bytes, const std::string& path) {
   check_container_sizes(bytes, path);
   MemoryFile memory{&bytes};
@@ -169,6 +192,10 @@ Signal read_sndfile(const std::string& bytes, const std::string& path) {
   s.sample_type = sub.type;
   s.sample_rate = info.samplerate;
   s.channel_names = default_signal_channel_names(info.channels);
+  if (const char* comment = sf_get_string(file, SF_STR_COMMENT)) {
+    auto names = parse_channel_names_comment(comment, info.channels);
+    if (!names.empty()) s.channel_names = std::move(names);
+  }
   const Eigen::Index frames = info.frames, channels = info.channels;
   s.samples.resize(frames, channels);
   // Read in blocks of frames; the interleaved block is scattered into columns.
@@ -439,6 +466,13 @@ bool write_sndfile(const std::string& tmp, const Eigen::MatrixXd& x, const Signa
   info.format = like.sndfile_format;
   SNDFILE* file = sf_open(tmp.c_str(), SFM_WRITE, &info);
   if (!file) return false;
+  if (like.channel_names != default_signal_channel_names(int(x.cols())) &&
+      int(like.channel_names.size()) == int(x.cols())) {
+    std::string comment = kChannelComment;
+    for (std::size_t c = 0; c < like.channel_names.size(); ++c)
+      comment += (c ? ", " : "") + like.channel_names[c];
+    sf_set_string(file, SF_STR_COMMENT, comment.c_str());  // formats without strings ignore it
+  }
   const SubtypeInfo sub = subtype_info(like.sndfile_format);
   const bool integer = sub.type == SampleType::pcm8 || sub.type == SampleType::pcm16 ||
                        sub.type == SampleType::pcm24 || sub.type == SampleType::pcm32;

@@ -40,7 +40,8 @@ struct Signal {
   SignalFormat format = SignalFormat::sndfile;
   SampleType sample_type = SampleType::pcm16;
   int sndfile_format = 0;             // libsndfile SF_FORMAT_* (major|subtype|endian), sndfile only
-  std::vector<std::string> channel_names;  // one per channel
+  std::vector<std::string> channel_names;  // one per channel; sound files keep them in their
+                                           // comment string "pcasweep channels: a, b, c" (ours)
   bool csv_header = false;            // the CSV had a header row (written back with one)
   char csv_delimiter = ',';
 

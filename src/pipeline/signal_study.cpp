@@ -153,8 +153,8 @@ ExcerptPlot excerpt_plot(const SignalAnalysis& a, const SignalSweepRow& row, con
   const Signal& s = a.signal;
   ExcerptPlot p;
   p.title = output_stem(a.input) + ": k = " + std::to_string(row.k) + " of " + std::to_string(a.X.cols()) +
-            " (" + a.layout->describe() + ")";
-  p.subtitle = "SNR " + format_real(row.quality.overall.snr_db, 4) + " dB, PRD " +
+            " components";
+  p.subtitle = a.layout->describe() + "; excerpt around the largest excursion\nSNR " + format_real(row.quality.overall.snr_db, 4) + " dB, PRD " +
                format_real(row.quality.overall.prd_percent, 4) + " %, mean-removed PRD " +
                format_real(row.quality.overall.prd_mean_removed_percent, 4) + " %, max |error| " +
                format_real(row.quality.overall.max_abs_error, 6) + "; energy retained " +

@@ -3,9 +3,10 @@
 //
 // Contract: the caller hands over finished numbers (time axis, samples,
 // residual); this file only lays them out. One pair of panels per channel,
-// stacked: top, original (dark blue) and reconstruction (orange) on one
-// y-axis; below, the residual original − reconstruction on its own y-axis
-// (its range is usually far smaller). Returns a complete standalone SVG document.
+// stacked: top, original (blue) and reconstruction (orange) on one y-axis;
+// below, the residual original − reconstruction on its own y-axis (its range
+// is usually far smaller). Each panel is a chart of report/svg.hpp, nested in
+// one standalone SVG document under a shared title.
 #pragma once
 
 #include <string>
@@ -22,7 +23,7 @@ struct ExcerptChannel {
 
 struct ExcerptPlot {
   std::string title;                    // "ternpoint_pump_vibration, k = 8"
-  std::string subtitle;                 // figures worth printing under the title
+  std::string subtitle;                 // lines under the title, separated by '\n'
   std::string x_label;                  // "time (s)" or "frame"
   std::string y_label;                  // "sample value (PCM 16-bit counts)"
   std::vector<double> x;                // L values, increasing
