@@ -62,7 +62,7 @@ EncodeResult encode_image(const Image& image, const PatchOptions& patch, const B
     Eigen::MatrixXd centred = X;
     centred.rowwise() -= mean.transpose();
     const Eigen::VectorXd power = (centred * all).colwise().squaredNorm().transpose();
-    std::vector<std::uint32_t> order(std::size_t(d));
+    std::vector<std::uint32_t> order(static_cast<std::size_t>(d));
     std::iota(order.begin(), order.end(), 0u);
     std::stable_sort(order.begin(), order.end(), [&](std::uint32_t a, std::uint32_t b) { return power(a) > power(b); });
     columns.resize(d, d);
@@ -169,7 +169,7 @@ EncodeResult encode_image(const Image& image, const PatchOptions& patch, const B
 }
 
 Image decode_coded_image(std::string_view bytes, const std::string& name, const SavedBasis* external,
-                         const Sha256* external_sha256) {
+                         const Sha256* external_sha256, std::size_t* clipped) {
   const CodedImage c = read_container(bytes, name);
   const Eigen::Index d = c.dimension, n = c.observations;
   const std::size_t m = c.coded();
@@ -228,7 +228,7 @@ Image decode_coded_image(std::string_view bytes, const std::string& name, const 
   like.channel_names = default_channel_names(c.channels);
   const PatchLayout layout(like, c.patch, name);
   const std::vector<Raster> folded = layout.fold(xhat);
-  return quantize(folded.front(), like);
+  return quantize(folded.front(), like, clipped);
 }
 
 }  // namespace pcasweep

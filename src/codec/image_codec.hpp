@@ -61,8 +61,9 @@ EncodeResult encode_image(const Image& image, const PatchOptions& patch, const B
 // names one (its SHA-256 in `external_sha256`). Returns the decoded image (bit depth and
 // channel count from the file). Throws Error(usage) when an external basis is needed and
 // missing; Error(data) for a corrupt file or a basis whose hash or geometry differs.
+// clipped (optional) receives how many samples were clipped to the bit depth's range.
 Image decode_coded_image(std::string_view bytes, const std::string& name, const SavedBasis* external = nullptr,
-                         const Sha256* external_sha256 = nullptr);
+                         const Sha256* external_sha256 = nullptr, std::size_t* clipped = nullptr);
 
 // Pixels (not samples) of the image a coded file holds, for bits per pixel.
 inline double pixel_count(const Image& image) { return double(image.width) * double(image.height); }

@@ -1,0 +1,43 @@
+// pcasweep decode FILE [--basis BASIS] -o IMAGE
+#include <iostream>
+#include <memory>
+#include <optional>
+
+#include "cli/command.hpp"
+#include "core/error.hpp"
+#include "io/atomic_file.hpp"
+#include "pipeline/codec_study.hpp"
+
+namespace pcasweep::cli {
+
+namespace {
+struct DecodeArgs {
+  std::string input;
+  std::string out;
+  std::string basis;
+  bool quiet = false;
+};
+}  // namespace
+
+Action setup_decode(CLI::App& sub) {
+  auto args = std::make_shared<DecodeArgs>();
+  sub.add_option("FILE", args->input, "Coded image written by `pcasweep encode` or `pcasweep sweep`")->required();
+  sub.add_option("--out,-o", args->out, "PNG to write (8- or 16-bit as coded)")->required();
+  sub.add_option("--basis", args->basis, "The basis file the image was coded with, when it names one");
+  sub.add_flag("--quiet,-q", args->quiet, "Print nothing on success");
+  return [args]() {
+    const std::string bytes = read_file(args->input);
+    std::optional<LoadedBasis> loaded;
+    if (!args->basis.empty()) loaded = load_basis_file(args->basis);
+    const Image image = decode_coded_image(bytes, args->input, loaded ? &loaded->saved : nullptr,
+                                           loaded ? &loaded->sha256 : nullptr);
+    write_png(args->out, image);
+    if (!args->quiet) {
+      std::cout << "wrote " << args->out << ": " << image.width << "x" << image.height << ", " << image.channels
+                << " channel(s), " << image.bit_depth << "-bit\n";
+    }
+    return 0;
+  };
+}
+
+}  // namespace pcasweep::cli

@@ -1,0 +1,89 @@
+// pcasweep/pipeline/codec_study.hpp — wires the codec for the fit/encode/decode
+// subcommands and the rate–distortion comparison written by `sweep`.
+//
+// Contract: nothing here computes on its own; it reads files, calls
+// observe/solve/codec/measure and lays the numbers out as tables. Every check
+// on the inputs happens before an output file is created.
+#pragma once
+
+#include <cmath>
+#include <nlohmann/json.hpp>
+#include <string>
+#include <vector>
+
+#include "codec/basis_file.hpp"
+#include "codec/image_codec.hpp"
+#include "pipeline/image_study.hpp"
+#include "report/table.hpp"
+
+namespace pcasweep {
+
+// Reads every input (all must share channels and bit depth), cuts each into patches
+// with settings.patch, stacks the observations (N = Σ N_i rows, d columns) and
+// learns a basis: PCA through settings.solver, or for BasisTransform::dct the
+// DCT-II columns sorted by the data's coefficient variance (eigenvalues = those variances).
+// Returns the basis ready for write_basis_file(). Throws Error.
+SavedBasis fit_basis(const std::vector<std::string>& inputs, const ImageStudySettings& settings,
+                     BasisTransform transform);
+
+// A basis file loaded for encode/decode, with the SHA-256 of its bytes.
+struct LoadedBasis {
+  SavedBasis saved;
+  Sha256 sha256{};
+};
+LoadedBasis load_basis_file(const std::string& path);
+
+// Throws Error(usage) "<basis>: ..." unless `image` and `patch` fit the basis's geometry
+// (patch size, colour mode, channels, bit depth).
+void check_basis_geometry(const SavedBasis& saved, const Image& image, const PatchOptions& patch,
+                          const std::string& image_name, const std::string& basis_name);
+
+// One point of a rate–distortion curve.
+struct RdPoint {
+  std::string method;       // "pca", "dct", "jpeg", "gaussian_bound"
+  int quality = 0;          // --quality (pca, dct) or JPEG quality; 0 for the bound
+  int coded = 0;            // components that got bits (pca, dct)
+  std::int64_t bytes = 0;   // file size (0 for the bound: it is a model)
+  double bits_per_pixel = 0.0;
+  double psnr_db = 0.0;     // measured on the decoded image (the bound: model)
+  double ssim = NAN;        // measured on the decoded image; NaN for the bound
+  std::string file;         // JPEG file written, relative to the output folder
+};
+
+struct RdSettings {
+  std::vector<int> codec_qualities = {5, 10, 20, 30, 35, 40, 45, 50, 55, 60, 65, 70, 80, 90, 100};
+  std::vector<int> jpeg_qualities = {5, 10, 20, 30, 40, 50, 60, 70, 80, 90, 95, 100};
+  int zstd_level = 19;
+};
+
+// For analysis with one image and the patches layout: PCA (own basis, k = r) and DCT
+// (k = d) through encode→decode at each codec quality, JPEG at each JPEG quality (written
+// under jpeg_dir/<stem>.q<Q>.jpg when jpeg_dir is not empty, else only sized), and the
+// Gaussian bound R(D) = Σ ½log2(λ_i/D_i) per observation from the eigenvalues, in bits per
+// pixel (N·R / (W·H)). Returns the points, each curve by increasing bits per pixel.
+std::vector<RdPoint> rate_distortion(const ImageAnalysis& analysis, const RdSettings& settings,
+                                     const std::string& jpeg_dir);
+
+// PSNR of `method` at `bpp`, linearly interpolated between the two measured points that
+// bracket it (NaN outside the curve). `coded` receives the components of the nearer point.
+double psnr_at_rate(const std::vector<RdPoint>& points, const std::string& method, double bpp, int* coded = nullptr);
+
+// Columns method, quality, coded, bytes, bits_per_pixel, psnr_db, ssim, file.
+Table rd_table(const std::vector<RdPoint>& points);
+
+// "at 1.0 bpp (interpolated along each curve), PCA (k = 12 coded) gives 35.1 dB, JPEG 34.0 dB, DCT 34.5 dB;
+// the Gaussian bound 38.2 dB".
+std::string rd_sentence(const std::vector<RdPoint>& points, double bpp);
+
+// What write_rate_distortion() produced.
+struct RdReport {
+  std::vector<RdPoint> points;
+  std::string sentence;   // rd_sentence at 1.0 bpp
+  nlohmann::json json;    // {"sentence", "at_bits_per_pixel": {...}, "points": [...]}, for summary.json
+};
+
+// Runs rate_distortion() and writes into out_dir (created if missing): jpeg/<stem>.q<Q>.jpg,
+// rd.csv (rd_table) and rd.svg (PSNR against bits per pixel, one curve per method).
+RdReport write_rate_distortion(const ImageAnalysis& analysis, const RdSettings& settings, const std::string& out_dir);
+
+}  // namespace pcasweep
