@@ -16,6 +16,23 @@ void add_image_options(CLI::App& sub, ImageOptionText& text) {
       ->check(CLI::IsMember({"joint", "channels"}));
   sub.add_flag("--drop-alpha", text.drop_alpha,
                "Remove an alpha channel before analysis (default: alpha is kept as a channel)");
+  sub.add_option("--layout", text.layout,
+                 "How images become observations: patches (default; one image cut into patches), whole "
+                 "(several same-size images, each one observation), bands (several co-registered gray "
+                 "images, each pixel one observation across the bands)");
+  sub.add_option("--solver", text.solver,
+                 "auto (default: chosen from the shape, the output says why), exact (d x d covariance, every "
+                 "component) or randomized (truncated randomized SVD)");
+  sub.add_option("--rank", text.rank,
+                 "Components the randomized solver computes (default: the largest --k, or 32)")
+      ->check(CLI::NonNegativeNumber);
+  sub.add_option("--oversample", text.oversample, "Randomized: extra test vectors beyond the rank (default 10)")
+      ->check(CLI::NonNegativeNumber);
+  sub.add_option("--power-iters", text.power_iters,
+                 "Randomized: power iterations q (default -1: adaptive, stop when the leading eigenvalues "
+                 "settle; see docs/performance.md)")
+      ->check(CLI::Range(-1, 1000));
+  sub.add_option("--seed", text.seed, "Randomized: seed of the Gaussian test matrix (default 1)");
 }
 
 ImageStudySettings image_settings(const ImageOptionText& text) {
@@ -29,11 +46,29 @@ ImageStudySettings image_settings(const ImageOptionText& text) {
   }
   s.patch.colour = text.colour == "channels" ? ColourMode::channels : ColourMode::joint;
   s.drop_alpha = text.drop_alpha;
+  s.layout = text.layout.empty() ? "patches" : text.layout;
+  if (s.layout != "patches" && s.layout != "whole" && s.layout != "bands") {
+    throw usage_error("--layout takes patches, whole or bands for images (windows for recordings), not '" +
+                      text.layout + "'");
+  }
+  s.solver.choice = parse_solver_choice(text.solver);
+  s.solver.rank = text.rank;
+  s.solver.oversample = text.oversample;
+  s.solver.power_iterations = text.power_iters;
+  s.solver.seed = text.seed;
   return s;
 }
 
 nlohmann::json image_settings_json(const ImageStudySettings& s) {
-  return {{"layout", "patches"},
+  const char* solver = s.solver.choice == SolverChoice::exact        ? "exact"
+                       : s.solver.choice == SolverChoice::randomized ? "randomized"
+                                                                     : "auto";
+  return {{"layout", s.layout},
+          {"solver", {{"choice", solver},
+                      {"rank", s.solver.rank},
+                      {"oversample", s.solver.oversample},
+                      {"power_iterations", s.solver.power_iterations},
+                      {"seed", s.solver.seed}}},
           {"patch", {s.patch.patch_height, s.patch.patch_width}},
           {"stride", {s.patch.stride_y ? s.patch.stride_y : s.patch.patch_height,
                       s.patch.stride_x ? s.patch.stride_x : s.patch.patch_width}},

@@ -2,6 +2,7 @@
 #pragma once
 
 #include <CLI/CLI.hpp>
+#include <cstdint>
 #include <string>
 
 #include "pipeline/image_study.hpp"
@@ -13,9 +14,16 @@ struct ImageOptionText {
   std::string stride;          // empty: same as patch
   std::string colour = "joint";
   bool drop_alpha = false;
+  std::string layout;          // patches (default), whole, bands; "windows" belongs to the signal options
+  std::string solver = "auto";
+  int rank = 0;                // 0: from the k's asked for
+  int oversample = 10;
+  int power_iters = -1;        // -1: adaptive
+  std::uint64_t seed = 1;
 };
 
-// Declares --patch, --stride, --colour, --drop-alpha on `sub`.
+// Declares --patch, --stride, --colour, --drop-alpha, --layout and the solver
+// options (--solver, --rank, --oversample, --power-iters, --seed) on `sub`.
 void add_image_options(CLI::App& sub, ImageOptionText& text);
 
 // Turns the option text into settings. Throws Error(usage).

@@ -6,12 +6,14 @@
 #include "cli/command.hpp"
 #include "cli/image_options.hpp"
 #include "core/error.hpp"
+#include "pipeline/image_set.hpp"
 
 namespace pcasweep::cli {
 
 namespace {
 struct SpectrumArgs {
   std::string input;
+  std::vector<std::string> more;  // further images for --layout whole/bands
   int top = 0;
   ImageOptionText image;
 };
@@ -20,26 +22,40 @@ struct SpectrumArgs {
 Action setup_spectrum(CLI::App& sub) {
   auto args = std::make_shared<SpectrumArgs>();
   sub.add_option("IMAGE", args->input, "Image to analyse (PNG, JPEG, BMP, TGA, PNM; 8 or 16 bit)")->required();
-  sub.add_option("--top", args->top, "Print only the first N components (default: all d)")
+  sub.add_option("MORE", args->more,
+                 "Further images, for --layout whole (same size, each one observation) or bands (gray, "
+                 "co-registered, one per band)");
+  sub.add_option("--top", args->top,
+                 "Print only the first N components (default: all computed; with the randomized solver N is "
+                 "also the default --rank)")
       ->check(CLI::NonNegativeNumber);
   add_image_options(sub, args->image);
   return [args]() {
-    const ImageAnalysis a = analyze_image(args->input, image_settings(args->image));
+    std::vector<std::string> paths{args->input};
+    paths.insert(paths.end(), args->more.begin(), args->more.end());
+    const ImageAnalysis a = analyze_image_files(paths, image_settings(args->image),
+                                                args->top > 0 ? std::vector<int>{args->top} : std::vector<int>{});
     Table table = spectrum_table(a.basis);
     if (args->top > 0 && std::size_t(args->top) < table.rows.size()) table.rows.resize(std::size_t(args->top));
     const double sum = a.basis.eigenvalues.sum();
     const double trace = a.basis.total_variance;
     const double rel = trace > 0 ? std::abs(sum - trace) / trace : std::abs(sum - trace);
-    std::cout << args->input << ": " << a.layout->describe() << "; N = " << a.X.rows() << " observations, d = "
-              << a.X.cols() << " variables; solver: " << a.basis.solver << " (" << a.basis.solver_reason << ")\n"
-              << "eigenvalues are variances of the sample covariance (divide by N-1), in sample units squared\n"
-              << render_console(table, 6) << "total variance (trace of the covariance) = " << format_real(trace)
-              << "\nsum of eigenvalues                      = " << format_real(sum)
-              << "\nrelative difference = " << format_real(rel, 3)
-              << (rel <= 1e-9 ? "  (agree: the eigenvalues share out the total variance)"
-                              : "  (DISAGREE beyond 1e-9: the solve lost accuracy)")
-              << "\n";
-    return rel <= 1e-9 ? 0 : 1;
+    std::cout << args->input << (paths.size() > 1 ? " and " + std::to_string(paths.size() - 1) + " more" : "")
+              << ": " << a.layout->describe() << "; N = " << a.X.rows() << " observations, d = " << a.X.cols()
+              << " variables\n"
+              << solver_lines(a.basis) << "eigenvalues are variances of the sample covariance (divide by N-1), in sample units squared\n"
+              << render_console(table, 6) << "total variance (trace of the covariance) = " << format_real(trace);
+    if (a.basis.complete()) {
+      std::cout << "\nsum of eigenvalues                      = " << format_real(sum)
+                << "\nrelative difference = " << format_real(rel, 3)
+                << (rel <= 1e-9 ? "  (agree: the eigenvalues share out the total variance)"
+                                : "  (DISAGREE beyond 1e-9: the solve lost accuracy)")
+                << "\n";
+    } else {
+      std::cout << "\nsum of the " << a.basis.rank() << " computed eigenvalues     = " << format_real(sum)
+                << "\n(the remaining " << format_real(trace - sum) << " lies beyond the computed rank)\n";
+    }
+    return (!a.basis.complete() || rel <= 1e-9) ? 0 : 1;
   };
 }
 

@@ -35,6 +35,13 @@ class Layout {
   virtual Eigen::MatrixXd observe(const std::vector<Image>& sources) const = 0;
   // X: N×d (any real values). Returns one Raster per source, unrounded.
   virtual std::vector<Raster> fold(const Eigen::MatrixXd& X) const = 0;
+  // When one observation (one row of X, d values) is itself a small image —
+  // a patch, a whole picture — its geometry (width·height·channels == d, same
+  // interleaved order as Image). Default: not an image, {0, 0, 0}.
+  struct ObservationShape {
+    int width = 0, height = 0, channels = 0;
+  };
+  virtual ObservationShape observation_shape() const { return {}; }
 };
 
 }  // namespace pcasweep

@@ -45,6 +45,10 @@ class PatchLayout : public Layout {
   std::vector<std::string> variable_names() const override;
   Eigen::MatrixXd observe(const std::vector<Image>& sources) const override;
   std::vector<Raster> fold(const Eigen::MatrixXd& X) const override;
+  // One patch: pw×ph with c channels (joint colour) or 1 (channels share a basis).
+  ObservationShape observation_shape() const override {
+    return {options_.patch_width, options_.patch_height, options_.colour == ColourMode::joint ? channels_ : 1};
+  }
 
   const PatchOptions& options() const { return options_; }
   int padded_width() const { return padded_w_; }

@@ -6,6 +6,7 @@
 #include <set>
 
 #include "core/error.hpp"
+#include "pipeline/image_set.hpp"
 #include "observe/raster.hpp"
 #include "reconstruct/reconstruct.hpp"
 #include "solve/operator.hpp"
@@ -145,7 +146,7 @@ nlohmann::json sweep_summary(const ImageAnalysis& a, const std::vector<SweepRow>
                  {"observations", a.X.rows()},
                  {"dimension", a.X.cols()}};
   const Eigen::VectorXd ev = a.basis.eigenvalues;
-  j["solver"] = {{"name", a.basis.solver}, {"reason", a.basis.solver_reason}};
+  j["solver"] = solver_json(a.basis);
   j["spectrum"] = {{"total_variance", a.basis.total_variance},
                    {"sum_of_eigenvalues", ev.sum()},
                    {"rows", to_json(spectrum_table(a.basis))}};

@@ -23,6 +23,7 @@
 namespace pcasweep {
 
 struct ImageStudySettings {
+  std::string layout = "patches";  // patches | whole | bands (pipeline/image_set.hpp)
   PatchOptions patch;
   bool drop_alpha = false;
   SolverSettings solver;

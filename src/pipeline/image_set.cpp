@@ -1,0 +1,190 @@
+#include "pipeline/image_set.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <filesystem>
+#include <sstream>
+
+#include "core/error.hpp"
+#include "observe/bands.hpp"
+#include "observe/patches.hpp"
+#include "observe/whole.hpp"
+#include "report/table.hpp"
+
+namespace pcasweep {
+
+ImageAnalysis analyze_image_files(const std::vector<std::string>& paths, const ImageStudySettings& settings,
+                                  const std::vector<int>& ks) {
+  if (paths.empty()) throw usage_error("no input image given");
+  const std::string& layout_name = settings.layout;
+  if (layout_name != "patches" && layout_name != "whole" && layout_name != "bands") {
+    throw usage_error("--layout takes patches, whole or bands for images, not '" + layout_name + "'");
+  }
+  if (layout_name == "patches" && paths.size() != 1) {
+    throw usage_error(paths[1] + ": the patches layout takes one image; use --layout whole or bands for several");
+  }
+  std::vector<Image> sources;
+  sources.reserve(paths.size());
+  for (const auto& p : paths) sources.push_back(read_image(p, ImageReadOptions{settings.drop_alpha}));
+  std::unique_ptr<Layout> layout;
+  if (layout_name == "patches") {
+    layout = std::make_unique<PatchLayout>(sources.front(), settings.patch, paths.front());
+    if (layout->observation_count() < 2) {
+      throw usage_error(paths.front() + ": only one patch fits; use a smaller --patch or --stride");
+    }
+  } else if (layout_name == "whole") {
+    layout = std::make_unique<WholeLayout>(sources, paths);
+  } else {
+    layout = std::make_unique<BandLayout>(sources, paths);
+  }
+  const Eigen::Index n = layout->observation_count(), d = layout->dimension(), smallest = std::min(n, d);
+  SolverSettings solver = settings.solver;
+  const int top_k = ks.empty() ? 0 : *std::max_element(ks.begin(), ks.end());
+  if (top_k > smallest) {
+    throw usage_error("--k: k = " + std::to_string(top_k) + " is more than min(N, d) = " + std::to_string(smallest) +
+                      " (N = " + std::to_string(n) + " observations, d = " + std::to_string(d) +
+                      " variables): a basis cannot have more useful components than that");
+  }
+  if (solver.rank > smallest) {
+    throw usage_error("--rank " + std::to_string(solver.rank) + " is more than min(N, d) = " +
+                      std::to_string(smallest) + " (N = " + std::to_string(n) + ", d = " + std::to_string(d) + ")");
+  }
+  if (solver.rank > 0 && top_k > solver.rank) {
+    throw usage_error("--k: k = " + std::to_string(top_k) + " is more than --rank " + std::to_string(solver.rank) +
+                      ", the components the truncated solver computes; raise --rank or drop it");
+  }
+  if (solver.rank == 0 && top_k > 0 && solver.choice != SolverChoice::exact) solver.rank = top_k;
+  return analyze_sources(paths, std::move(sources), std::move(layout), solver);
+}
+
+void check_ks_against(const std::vector<int>& ks, const ImageAnalysis& a) {
+  const Eigen::Index smallest = std::min(a.X.rows(), a.X.cols());
+  for (int k : ks) {
+    if (k < 1 || k > smallest) {
+      throw usage_error("--k: k = " + std::to_string(k) + " is outside 1.." + std::to_string(smallest) +
+                        " (min(N, d), N = " + std::to_string(a.X.rows()) + " observations, d = " +
+                        std::to_string(a.X.cols()) + " variables)");
+    }
+    if (k > a.basis.rank()) {
+      throw usage_error("--k: k = " + std::to_string(k) + " is more than the " + std::to_string(a.basis.rank()) +
+                        " components the " + a.basis.solver + " solver computed; raise --rank");
+    }
+  }
+}
+
+std::vector<int> default_ks_for(const ImageAnalysis& a) {
+  const Eigen::Index r = std::min({a.basis.rank(), a.X.rows(), a.X.cols()});
+  return default_ks(r);
+}
+
+namespace {
+nlohmann::json finite_or_null(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(); }
+}  // namespace
+
+nlohmann::json solver_json(const Basis& b) {
+  nlohmann::json j = {{"name", b.solver},
+                      {"reason", b.solver_reason},
+                      {"rank", b.rank()},
+                      {"variance_beyond_rank", variance_beyond_rank(b)},
+                      {"proportion_beyond_rank",
+                       b.total_variance > 0 ? variance_beyond_rank(b) / b.total_variance : 0.0}};
+  if (b.solver == "randomized") {
+    j["sample_size"] = b.sample_size;
+    j["oversample"] = b.oversample;
+    j["passes"] = b.passes;
+    j["power_iterations"] = 0.5 * (b.passes - 2);
+    j["seed"] = b.seed;
+    j["converged"] = b.converged;
+    j["last_relative_change"] = finite_or_null(b.last_relative_change);
+    j["subspace_residual"] = b.subspace_residual;
+    j["subspace_residual_at_rounding_floor"] = b.subspace_residual <= b.residual_floor;
+    j["residual_rounding_floor"] = b.residual_floor;
+    j["optimality_gap_estimate"] = finite_or_null(b.optimality_gap_estimate);
+    j["notes"] =
+        "subspace_residual: variance (sample units^2, /(N-1)) outside the sampled subspace of sample_size "
+        "vectors, exact up to rounding: trace - sum of its captured eigenvalues, clamped at the rounding floor. "
+        "optimality_gap_estimate: estimated relative excess of the rank-r Frobenius error over the optimal "
+        "rank-r error (0 = optimal), extrapolated from the last passes; null when it cannot be estimated.";
+  }
+  return j;
+}
+
+std::string solver_lines(const Basis& b) {
+  std::ostringstream o;
+  o << "solver: " << b.solver << " (" << b.solver_reason << "); " << b.rank() << " of " << b.dimension()
+    << " components computed\n";
+  if (b.solver == "randomized") {
+    o << "randomized: " << b.sample_size << " test vectors (" << b.oversample << " oversampling), " << b.passes
+      << " passes over the data (" << format_real(0.5 * (b.passes - 2), 3) << " power iterations), seed " << b.seed
+      << ", " << (b.converged ? "converged" : "stopped at the pass cap before converging")
+      << " (last move " << format_real(b.last_relative_change, 2) << " of the total variance)\n";
+    o << "variance outside the sampled subspace = "
+      << (b.subspace_residual <= b.residual_floor ? "<= " + format_real(b.residual_floor, 3) + " (rounding floor)"
+                                                  : format_real(b.subspace_residual, 6))
+      << "; rank-" << b.rank() << " error above optimal: "
+      << (std::isfinite(b.optimality_gap_estimate) ? "about " + format_real(100.0 * b.optimality_gap_estimate, 2) + " %"
+                                                   : std::string("unknown (too few passes to estimate)"))
+      << "\n";
+  }
+  if (!b.complete()) {
+    const double beyond = variance_beyond_rank(b);
+    o << "variance beyond the computed rank " << b.rank() << " = " << format_real(beyond, 6) << " ("
+      << format_real(b.total_variance > 0 ? 100.0 * beyond / b.total_variance : 0.0, 4)
+      << " % of the total; proportions use the exact trace)\n";
+  }
+  return o.str();
+}
+
+std::vector<Image> component_images(const Basis& basis, const Layout& layout, int limit, int scale) {
+  const Layout::ObservationShape shape = layout.observation_shape();
+  if (shape.width <= 0 || Eigen::Index(shape.width) * shape.height * shape.channels != basis.dimension()) return {};
+  const int keep = shape.channels == 2 ? 1 : shape.channels == 4 ? 3 : shape.channels;
+  const int count = int(std::min<Eigen::Index>(limit, basis.rank()));
+  scale = std::max(1, scale);
+  std::vector<Image> out;
+  for (int i = 0; i < count; ++i) {
+    const auto v = basis.components.col(i);
+    double peak = 0.0;
+    for (int y = 0; y < shape.height; ++y)
+      for (int x = 0; x < shape.width; ++x)
+        for (int c = 0; c < keep; ++c)
+          peak = std::max(peak, std::abs(v((Eigen::Index(y) * shape.width + x) * shape.channels + c)));
+    Image im;
+    im.width = shape.width * scale;
+    im.height = shape.height * scale;
+    im.channels = keep;
+    im.bit_depth = 8;
+    im.channel_names = default_channel_names(keep);
+    im.samples.resize(std::size_t(im.width) * im.height * keep);
+    for (int y = 0; y < im.height; ++y)
+      for (int x = 0; x < im.width; ++x)
+        for (int c = 0; c < keep; ++c) {
+          const double t = peak > 0 ? v((Eigen::Index(y / scale) * shape.width + x / scale) * shape.channels + c) / peak
+                                    : 0.0;
+          im.at(x, y, c) = std::uint16_t(std::lround(std::clamp(127.5 + 127.5 * t, 0.0, 255.0)));
+        }
+    out.push_back(std::move(im));
+  }
+  return out;
+}
+
+int write_component_images(const ImageAnalysis& a, const std::string& out_dir, int limit) {
+  const Layout::ObservationShape shape = a.layout->observation_shape();
+  if (shape.width <= 0) return 0;
+  const int longer = std::max(shape.width, shape.height);
+  const int scale = std::clamp((64 + longer - 1) / longer, 1, 8);
+  const auto images = component_images(a.basis, *a.layout, limit, scale);
+  if (images.empty()) return 0;
+  const std::filesystem::path dir = std::filesystem::path(out_dir) / "components";
+  std::error_code ec;
+  std::filesystem::create_directories(dir, ec);
+  if (ec) throw data_error(dir.string() + ": cannot create output folder: " + ec.message());
+  for (std::size_t i = 0; i < images.size(); ++i) {
+    char name[48];
+    std::snprintf(name, sizeof name, "component_%02zu.png", i + 1);
+    write_png((dir / name).string(), images[i]);
+  }
+  return int(images.size());
+}
+
+}  // namespace pcasweep

@@ -1,0 +1,207 @@
+// Checks of the randomized solver (solve/randomized.hpp) against Eigen's
+// BDCSVD on the explicitly centred matrix, and against the expectation bound
+// of Halko, Martinsson & Tropp, SIAM Review 53(2), 2011, Theorem 10.6.
+#include <doctest/doctest.h>
+#include <omp.h>
+
+#include <Eigen/SVD>
+#include <cmath>
+
+#include "core/error.hpp"
+#include "solve/operator.hpp"
+#include "solve/randomized.hpp"
+#include "solve/solver.hpp"
+
+using namespace pcasweep;
+
+namespace {
+
+// N×d matrix U·diag(s)·Vᵀ with random orthonormal U, V (from QR of Gaussians)
+// plus a column offset, so the solver has a mean to remove.
+Eigen::MatrixXd with_spectrum(Eigen::Index n, Eigen::Index d, const Eigen::VectorXd& s, std::uint64_t seed) {
+  const Eigen::Index r = s.size();
+  Eigen::HouseholderQR<Eigen::MatrixXd> qu(gaussian_matrix(n, r, seed)), qv(gaussian_matrix(d, r, seed + 1));
+  const Eigen::MatrixXd u = qu.householderQ() * Eigen::MatrixXd::Identity(n, r);
+  const Eigen::MatrixXd v = qv.householderQ() * Eigen::MatrixXd::Identity(d, r);
+  Eigen::MatrixXd a = u * s.asDiagonal() * v.transpose();
+  a.rowwise() += Eigen::RowVectorXd::LinSpaced(d, 10.0, 20.0);
+  return a;
+}
+
+Eigen::MatrixXd centred(const Eigen::MatrixXd& a) { return a.rowwise() - a.colwise().mean(); }
+
+// ‖A_c − A_c·V·Vᵀ‖_F, the error of projecting on the returned components.
+double projection_error(const Eigen::MatrixXd& ac, const Eigen::MatrixXd& v) {
+  return (ac - (ac * v) * v.transpose()).norm();
+}
+
+RandomizedSettings settings_for(Eigen::Index k) {
+  RandomizedSettings s;
+  s.rank = k;
+  return s;
+}
+
+}  // namespace
+
+TEST_CASE("randomized: exact-rank matrix recovered as BDCSVD gives it (1e-10)") {
+  const Eigen::Index n = 300, d = 80, r = 7;
+  Eigen::VectorXd s(r);
+  s << 50, 30, 20, 9, 5, 2, 1;
+  const Eigen::MatrixXd a = with_spectrum(n, d, s, 11);
+  const Eigen::MatrixXd ac = centred(a);
+  Eigen::BDCSVD<Eigen::MatrixXd> ref(ac, Eigen::ComputeThinV);
+  DenseOperator op(a);
+  const Basis b = solve_randomized(op, settings_for(10));
+  REQUIRE(b.rank() == 10);
+  const Eigen::VectorXd sigma = (b.eigenvalues * double(n - 1)).cwiseSqrt();
+  for (Eigen::Index i = 0; i < r; ++i) CHECK(std::abs(sigma(i) - ref.singularValues()(i)) <= 1e-10 * ref.singularValues()(0));
+  // Beyond the rank the singular values vanish (round-off only).
+  CHECK(sigma.tail(3).maxCoeff() <= 1e-10 * ref.singularValues()(0));
+  // Same subspace: projectors onto the leading r right singular vectors agree.
+  const Eigen::MatrixXd p_ref = ref.matrixV().leftCols(r) * ref.matrixV().leftCols(r).transpose();
+  const Eigen::MatrixXd p_ours = b.components.leftCols(r) * b.components.leftCols(r).transpose();
+  CHECK((p_ref - p_ours).cwiseAbs().maxCoeff() <= 1e-10);
+  // The captured subspace holds everything: the residual is at the rounding floor.
+  CHECK(b.subspace_residual <= b.residual_floor * (1 + 1e-12));
+}
+
+TEST_CASE("randomized: decaying spectrum, default settings within (1+1e-3) of optimal") {
+  const Eigen::Index n = 400, d = 200, k = 20;
+  // Geometric decay 0.9^i: slow enough that q = 0 visibly misses (see below).
+  const Eigen::VectorXd s = Eigen::VectorXd::LinSpaced(d, 0, double(d - 1)).unaryExpr([](double i) { return std::pow(0.9, i); });
+  const Eigen::MatrixXd a = with_spectrum(n, d, s, 21);
+  const Eigen::MatrixXd ac = centred(a);
+  Eigen::BDCSVD<Eigen::MatrixXd> ref(ac);
+  const double optimal = std::sqrt(ref.singularValues().tail(d - k).squaredNorm());
+  DenseOperator op(a);
+  const Basis b = solve_randomized(op, settings_for(k));
+  const double ours = projection_error(ac, b.components);
+  INFO("ours " << ours << " optimal " << optimal << " passes " << b.passes);
+  CHECK(ours <= (1.0 + 1e-3) * optimal);
+  CHECK(b.converged);
+  // The estimated distance from optimal is of the right size (loose: factor 10 or 1e-6 absolute).
+  REQUIRE(std::isfinite(b.optimality_gap_estimate));
+  CHECK(b.optimality_gap_estimate <= 10.0 * (ours / optimal - 1.0) + 1e-6);
+}
+
+TEST_CASE("randomized: q = 0 respects the HMT Theorem 10.6 expectation bound (loose, mean of 10 seeds)") {
+  // Theorem 10.6 (HMT 2011): for target rank k and oversampling p >= 2, Q from
+  // Y = AΩ with Ω Gaussian d×(k+p):
+  //   E‖A − QQᵀA‖₂ <= (1 + sqrt(k/(p−1)))·σ_{k+1} + (e·sqrt(k+p)/p)·sqrt(Σ_{j>k} σ_j²).
+  // We return V spanning the rows of QᵀA; ‖A(I − VVᵀ)‖₂ <= ‖A − QQᵀA‖₂, so
+  // asking for rank k+p with no oversampling and q = 0 tests the same bound.
+  const Eigen::Index n = 300, d = 150, k = 10, p = 5;
+  const Eigen::VectorXd s = Eigen::VectorXd::LinSpaced(d, 1, double(d)).cwiseInverse();  // σ_j = 1/j: slow decay
+  const Eigen::MatrixXd a = with_spectrum(n, d, s, 31);
+  const Eigen::MatrixXd ac = centred(a);
+  Eigen::BDCSVD<Eigen::MatrixXd> ref(ac);
+  const Eigen::VectorXd sv = ref.singularValues();
+  const double bound = (1.0 + std::sqrt(double(k) / double(p - 1))) * sv(k) +
+                       std::exp(1.0) * std::sqrt(double(k + p)) / double(p) * std::sqrt(sv.tail(d - k).squaredNorm());
+  double mean = 0.0;
+  DenseOperator op(a);
+  for (std::uint64_t seed = 1; seed <= 10; ++seed) {
+    RandomizedSettings rs;
+    rs.rank = k + p;
+    rs.oversample = 0;
+    rs.power_iterations = 0;
+    rs.seed = seed;
+    const Basis b = solve_randomized(op, rs);
+    CHECK(b.passes == 2);
+    const Eigen::MatrixXd resid = ac - (ac * b.components) * b.components.transpose();
+    mean += Eigen::BDCSVD<Eigen::MatrixXd>(resid).singularValues()(0) / 10.0;
+  }
+  INFO("mean spectral error " << mean << ", bound " << bound << ", optimal " << sv(k));
+  CHECK(mean <= bound);
+  CHECK(mean >= sv(k + p) * (1 - 1e-12));  // no rank-(k+p) projection beats σ_{k+p+1}
+}
+
+TEST_CASE("randomized: orthonormal, sorted, deterministic sign, bit-identical for a seed") {
+  const Eigen::Index n = 500, d = 120, k = 12;
+  const Eigen::VectorXd s = Eigen::VectorXd::LinSpaced(d, 0, double(d - 1)).unaryExpr([](double i) { return std::exp(-i / 8.0); });
+  const Eigen::MatrixXd a = with_spectrum(n, d, s, 41);
+  DenseOperator op(a);
+  const Basis b1 = solve_randomized(op, settings_for(k));
+  const Basis b2 = solve_randomized(op, settings_for(k));
+  CHECK((b1.components.transpose() * b1.components - Eigen::MatrixXd::Identity(k, k)).cwiseAbs().maxCoeff() <= 1e-10);
+  for (Eigen::Index i = 1; i < k; ++i) CHECK(b1.eigenvalues(i) <= b1.eigenvalues(i - 1));
+  for (Eigen::Index j = 0; j < k; ++j) {
+    Eigen::Index at = 0;
+    b1.components.col(j).cwiseAbs().maxCoeff(&at);
+    CHECK(b1.components(at, j) > 0.0);
+  }
+  CHECK(b1.components == b2.components);  // bit for bit
+  CHECK(b1.eigenvalues == b2.eigenvalues);
+  CHECK(b1.passes == b2.passes);
+}
+
+TEST_CASE("randomized: the Gaussian test matrix does not depend on the thread count") {
+  const int saved = omp_get_max_threads();
+  omp_set_num_threads(1);
+  const Eigen::MatrixXd one = gaussian_matrix(1001, 7, 99);
+  omp_set_num_threads(std::max(2, saved));
+  const Eigen::MatrixXd many = gaussian_matrix(1001, 7, 99);
+  omp_set_num_threads(saved);
+  CHECK(one == many);
+  // Loose sanity of the distribution (common practice): mean near 0, variance near 1.
+  CHECK(std::abs(one.mean()) < 0.05);
+  CHECK(std::abs((one.array() - one.mean()).square().mean() - 1.0) < 0.05);
+  CHECK(gaussian_matrix(10, 3, 1) != gaussian_matrix(10, 3, 2));
+}
+
+TEST_CASE("randomized: another seed gives the same eigenvalues to 1e-6 on a separated spectrum") {
+  const Eigen::Index n = 400, d = 100, k = 8;
+  const Eigen::VectorXd s = Eigen::VectorXd::LinSpaced(d, 0, double(d - 1)).unaryExpr([](double i) { return std::pow(0.6, i); });
+  const Eigen::MatrixXd a = with_spectrum(n, d, s, 51);
+  DenseOperator op(a);
+  RandomizedSettings r1 = settings_for(k), r2 = settings_for(k);
+  r2.seed = 12345;
+  const Basis b1 = solve_randomized(op, r1), b2 = solve_randomized(op, r2);
+  CHECK(b1.components != b2.components);
+  for (Eigen::Index i = 0; i < k; ++i) CHECK(std::abs(b1.eigenvalues(i) - b2.eigenvalues(i)) <= 1e-6 * b1.eigenvalues(i));
+}
+
+TEST_CASE("randomized: bad input is refused with clear errors") {
+  const Eigen::MatrixXd a = gaussian_matrix(30, 10, 3);
+  DenseOperator op(a);
+  CHECK_THROWS_WITH_AS(solve_randomized(op, settings_for(11)), doctest::Contains("outside 1..10"), Error);
+  CHECK_THROWS_AS(solve_randomized(op, settings_for(0)), Error);
+  const Eigen::MatrixXd one_row = gaussian_matrix(1, 10, 3);
+  DenseOperator op1(one_row);
+  try {
+    solve_randomized(op1, settings_for(1));
+    FAIL("no error for N = 1");
+  } catch (const Error& e) {
+    CHECK(e.kind() == ErrorKind::data);
+    CHECK(std::string(e.what()).find("at least 2 observations") != std::string::npos);
+  }
+  SolverSettings s;
+  s.rank = 11;
+  s.choice = SolverChoice::randomized;
+  CHECK_THROWS_WITH_AS(solve(op, s), doctest::Contains("min(N, d) = 10"), Error);
+}
+
+TEST_CASE("randomized: a subspace as wide as min(N, d) is exact after two passes") {
+  const Eigen::MatrixXd a = gaussian_matrix(40, 25, 8);
+  const Eigen::MatrixXd ac = centred(a);
+  Eigen::BDCSVD<Eigen::MatrixXd> ref(ac);
+  DenseOperator op(a);
+  const Basis b = solve_randomized(op, settings_for(20));  // l = min(20 + 10, 25) = 25 = d
+  CHECK(b.passes == 2);
+  CHECK(b.optimality_gap_estimate == 0.0);
+  for (Eigen::Index i = 0; i < 20; ++i)
+    CHECK(std::abs(b.eigenvalues(i) * 39.0 - ref.singularValues()(i) * ref.singularValues()(i)) <=
+          1e-10 * ref.singularValues()(0) * ref.singularValues()(0));
+}
+
+TEST_CASE("solve: auto explains its choice; exact refuses a covariance too large for memory") {
+  const Eigen::MatrixXd a = gaussian_matrix(50, 20, 5);
+  DenseOperator op(a);
+  SolverSettings s;
+  const Basis b = solve(op, s);
+  CHECK(b.solver == "exact");
+  CHECK(b.solver_reason.find("d = 20") != std::string::npos);
+  const CostEstimate big = estimate_costs(400, 65536, 32, 10);
+  CHECK(big.exact_bytes > kExactMemoryLimit);
+  CHECK(big.randomized_seconds < big.exact_seconds);
+}
