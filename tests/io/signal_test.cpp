@@ -13,7 +13,7 @@
 #include "core/error.hpp"
 #include "io/atomic_file.hpp"
 #include "io/signal.hpp"
-#include "support/signals.hpp"
+#include "../support/signals.hpp"
 
 using namespace pcasweep;
 using pcasweep::testing::ScratchDir;
@@ -197,10 +197,10 @@ TEST_CASE("signal io: bad inputs are refused with the file named") {
   CHECK(read_signal(dir.file("honest.wav")).frames() == 100);
   // A WAV cut off inside its header.
   write_bytes(dir.file("cut.wav"), forged_wav(200, 200).substr(0, 30));
-  CHECK(error_of([&] { read_signal(dir.file("cut.wav")); }).find("cut.wav: ") == 0);
+  CHECK(error_of([&] { read_signal(dir.file("cut.wav")); }).find(dir.file("cut.wav") + ": ") == 0);
   // Not a recording at all.
   write_bytes(dir.file("junk.wav"), "this is not a sound file at all, just words");
-  CHECK(error_of([&] { read_signal(dir.file("junk.wav")); }).find("junk.wav: not a recording") == 0);
+  CHECK(error_of([&] { read_signal(dir.file("junk.wav")); }).find(dir.file("junk.wav") + ": not a recording") == 0);
   // Raw size not a whole number of frames, and raw without a type.
   write_bytes(dir.file("odd.raw"), "abc");
   SignalReadOptions raw;

@@ -9,7 +9,7 @@
 
 #include "core/error.hpp"
 #include "observe/windows.hpp"
-#include "support/signals.hpp"
+#include "../support/signals.hpp"
 
 using namespace pcasweep;
 

@@ -15,7 +15,8 @@
 #include "core/error.hpp"
 #include "io/atomic_file.hpp"
 #include "pipeline/signal_study.hpp"
-#include "support/signals.hpp"
+#include "reconstruct/reconstruct.hpp"
+#include "../support/signals.hpp"
 
 using namespace pcasweep;
 using pcasweep::testing::ScratchDir;
@@ -137,7 +138,9 @@ TEST_CASE("signal study: sweep writes reconstructions, plots and tables; metrics
   CHECK(std::isinf(rows[2].quality.overall.snr_db));
   const std::string svg = read_file(out + "/rec.k4.excerpt.svg");
   CHECK(svg.find("<svg") != std::string::npos);
-  CHECK(svg.find("polyline") != std::string::npos);
+  CHECK(svg.find("<path") != std::string::npos);
+  CHECK(svg.find("reconstruction") != std::string::npos);
+  CHECK(svg.find("residual") != std::string::npos);
   const std::string csv = read_file(out + "/sweep.csv");
   CHECK(csv.rfind("k,rmse,snr_db,prd_percent,prd_mean_removed_percent,max_abs_error,energy_retained", 0) == 0);
   CHECK(csv.find("snr_db_left") != std::string::npos);
