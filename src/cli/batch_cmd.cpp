@@ -50,8 +50,8 @@ Action setup_batch(CLI::App& sub) {
   sub.add_option("--train-fraction", a->train_fraction,
                  "Shared basis without --train: share of the files drawn at random for training (default 0.2)");
   sub.add_option("--threads,-j", a->threads,
-                 "Files swept at once (default: the number of cores). With more than one, each file's linear algebra "
-                 "runs on one thread, so the cores are not oversubscribed");
+                 "Files swept at once (default: the number of cores). Each file's linear algebra runs on one "
+                 "thread, so the cores are not oversubscribed");
   sub.add_option("--coverage", a->coverage,
                  "Share of files that must meet the target, in percent (default 95; 0.95 is read as 95%)");
   sub.add_option("--target-psnr", a->target_psnr, "PSNR target in dB for the recommendation (default 40)");

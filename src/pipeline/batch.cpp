@@ -235,12 +235,16 @@ BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settin
     result.shared = std::move(shared);
   }
 
-  // The sweep: files in parallel, or one after another with parallel linear algebra.
+  // The sweep: `workers` files at a time, each file's linear algebra on one
+  // thread. Measured (docs/batch.md): with OpenMP inside each file instead,
+  // a 24-file batch took 6x longer on the 2-core reference machine, the
+  // threads spinning at every small parallel region; so the files are the
+  // unit of parallelism even with --threads 1.
   const int workers = int(std::min<std::size_t>(std::size_t(settings.threads), std::max<std::size_t>(n, 1)));
   result.threads_used = workers;
-  result.parallel_mode = workers > 1 ? "files" : "inner";
+  result.parallel_mode = "files";
   const int eigen_threads_before = Eigen::nbThreads();
-  if (workers > 1) Eigen::setNbThreads(1);
+  Eigen::setNbThreads(1);
   state.phase = "sweep";
   state.done = 0;
   state.total = n;
@@ -248,7 +252,7 @@ BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settin
   std::atomic<std::size_t> next{0};
   auto work = [&]() {
 #ifdef _OPENMP
-    if (workers > 1) omp_set_num_threads(1);
+    omp_set_num_threads(1);
 #endif
     for (std::size_t i; (i = next.fetch_add(1)) < n;) {
       FileResult& f = result.files[i];
@@ -293,13 +297,11 @@ BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settin
       if (progress) progress(state);
     }
   };
-  if (workers > 1) {
+  {
     std::vector<std::thread> pool;
     for (int w = 0; w < workers; ++w) pool.emplace_back(work);
     for (auto& t : pool) t.join();
     Eigen::setNbThreads(eigen_threads_before);
-  } else {
-    work();
   }
   for (const auto& f : inputs.failed) result.failures.push_back(f);
   for (const auto& f : result.files)

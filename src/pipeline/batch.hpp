@@ -12,9 +12,9 @@
 //                   stored_values count only the file's coefficients (N·k);
 //                   the basis (k·d + d values) is counted once for the batch.
 // A file that cannot be read or swept is recorded with its reason and the
-// batch goes on. Files are swept in parallel by `threads` workers; with more
-// than one worker the linear algebra inside each file runs on one thread
-// (OpenMP and Eigen), so the cores are not oversubscribed.
+// batch goes on. Files are swept in parallel by `threads` workers and the
+// linear algebra inside each file runs on one thread (OpenMP and Eigen), so
+// the cores are not oversubscribed (measured faster: docs/batch.md).
 // write_batch_outputs() writes batch.csv, aggregate.csv, recommendation.csv,
 // failures.csv, summary.json and report.html (docs/batch.md), each atomically.
 #pragma once
@@ -79,7 +79,7 @@ struct BatchResult {
   std::vector<InputNote> failures;          // inputs.failed + files that failed, with reasons
   double seconds = 0.0;
   int threads_used = 1;
-  std::string parallel_mode;                // "files" or "inner"
+  std::string parallel_mode;                // "files": files in parallel, one thread inside each
   int exit_code() const { return failures.empty() ? 0 : 1; }
 };
 
