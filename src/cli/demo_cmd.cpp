@@ -7,6 +7,7 @@
 
 #include "cli/command.hpp"
 #include "cli/image_options.hpp"
+#include "cli/signal_options.hpp"
 #include "core/error.hpp"
 #include "pipeline/batch.hpp"
 
@@ -55,8 +56,28 @@ Action setup_demo(CLI::App& sub) {
         ++failures;
       }
     }
+    // Recordings (the pump vibration log, .wav; its .csv twin holds the same samples):
+    // default windows (64 frames, no overlap, joint channels), every default k.
+    std::vector<std::string> recordings;
+    for (const auto& entry : fs::directory_iterator(args->samples))
+      if (entry.is_regular_file() && entry.path().extension() == ".wav") recordings.push_back(entry.path());
+    std::sort(recordings.begin(), recordings.end());
+    for (const auto& path : recordings) {
+      try {
+        const SignalStudySettings signal;
+        const SignalAnalysis a = analyze_signal(path, signal);
+        const std::string dir = (fs::path(args->out) / output_stem(path)).string();
+        const auto rows = write_signal_sweep(a, default_ks(a.basis.rank()), dir, signal_settings_json(signal));
+        std::cout << "\n== " << describe_analysis(a) << "\n"
+                  << render_console(signal_sweep_table(rows, {}, false), 4) << "wrote " << dir << "/\n";
+      } catch (const Error& e) {
+        std::cerr << "pcasweep: " << e.what() << "\n";
+        ++failures;
+      }
+    }
     const double seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-    std::cout << "\n" << images.size() - failures << " of " << images.size() << " samples swept in "
+    std::cout << "\n" << images.size() + recordings.size() - failures << " of " << images.size() + recordings.size()
+              << " samples swept in "
               << format_real(seconds, 3) << " s; outputs in " << args->out << "/\n"
               << "(stored_values and ratio estimate size in numbers kept, not bytes)\n";
     // The same samples as one batch (pipeline/batch.hpp): a k for all of them and report.html.
