@@ -5,6 +5,7 @@
 
 #include "cli/command.hpp"
 #include "cli/image_options.hpp"
+#include "cli/signal_options.hpp"
 #include "core/error.hpp"
 #include "pipeline/image_set.hpp"
 
@@ -21,7 +22,10 @@ struct SpectrumArgs {
 
 Action setup_spectrum(CLI::App& sub) {
   auto args = std::make_shared<SpectrumArgs>();
-  sub.add_option("IMAGE", args->input, "Image to analyse (PNG, JPEG, BMP, TGA, PNM; 8 or 16 bit)")->required();
+  sub.add_option("IMAGE", args->input,
+                 "Image (PNG, JPEG, BMP, TGA, PNM; 8 or 16 bit) or recording (WAV, FLAC, Ogg, AIFF, CSV, raw; "
+                 "see --window) to analyse")
+      ->required();
   sub.add_option("MORE", args->more,
                  "Further images, for --layout whole (same size, each one observation) or bands (gray, "
                  "co-registered, one per band)");
@@ -30,7 +34,11 @@ Action setup_spectrum(CLI::App& sub) {
                  "also the default --rank)")
       ->check(CLI::NonNegativeNumber);
   add_image_options(sub, args->image);
-  return [args]() {
+  auto signal = std::make_shared<SignalOptionText>();
+  add_signal_options(sub, *signal);  // after the image options: reuses their --layout if any
+  return [args, signal, app = &sub]() {
+    if (signal_input_requested(*app, *signal, args->input))
+      return run_signal_spectrum(args->input, args->top, signal_settings(*signal, app));
     std::vector<std::string> paths{args->input};
     paths.insert(paths.end(), args->more.begin(), args->more.end());
     const ImageAnalysis a = analyze_image_files(paths, image_settings(args->image),

@@ -4,6 +4,7 @@
 
 #include "cli/command.hpp"
 #include "cli/image_options.hpp"
+#include "cli/signal_options.hpp"
 #include "core/error.hpp"
 #include "pipeline/image_set.hpp"
 
@@ -22,7 +23,10 @@ struct SweepArgs {
 
 Action setup_sweep(CLI::App& sub) {
   auto args = std::make_shared<SweepArgs>();
-  sub.add_option("IMAGE", args->input, "Image to analyse (PNG, JPEG, BMP, TGA, PNM; 8 or 16 bit)")->required();
+  sub.add_option("IMAGE", args->input,
+                 "Image (PNG, JPEG, BMP, TGA, PNM; 8 or 16 bit) or recording (WAV, FLAC, Ogg, AIFF, CSV, raw; "
+                 "see --window) to analyse")
+      ->required();
   sub.add_option("MORE", args->more,
                  "Further images, for --layout whole (same size, each one observation) or bands (gray, "
                  "co-registered, one per band)");
@@ -32,7 +36,11 @@ Action setup_sweep(CLI::App& sub) {
                  "d = patch rows x columns x channels)");
   sub.add_flag("--quiet,-q", args->quiet, "Print nothing on success");
   add_image_options(sub, args->image);
-  return [args]() {
+  auto signal = std::make_shared<SignalOptionText>();
+  add_signal_options(sub, *signal);  // after the image options: reuses their --layout if any
+  return [args, signal, app = &sub]() {
+    if (signal_input_requested(*app, *signal, args->input))
+      return run_signal_sweep(args->input, args->out, args->ks, args->quiet, signal_settings(*signal, app));
     const ImageStudySettings settings = image_settings(args->image);
     std::vector<int> ks = args->ks.empty() ? std::vector<int>{} : parse_k_list(args->ks);
     std::vector<std::string> paths{args->input};
