@@ -1,0 +1,147 @@
+#!/usr/bin/env python3
+"""The comparison behind scripts/bench (see that script for usage).
+
+Every matrix is written once to a temporary .npy that pcasweep-bench and numpy both read.
+Matrices are column-centred first, so that our solver (which always removes the mean) and
+randomized_svd / numpy.linalg.svd (which do not) solve the same problem.
+Per case it prints seconds (median of R), GFLOP/s (nominal flop counts, stated below), the
+Frobenius error of projecting on the returned k components relative to the optimum from the
+full SVD, and the ratios ours/sklearn and ours/two-pass floor (2 GEMMs of N×d by d×(k+p) at
+the best rate pcasweep-bench measured for that shape in double precision).
+Flop counts: randomized = passes · 2·N·d·l (l = k+10; sklearn passes = 2·n_iter+2, n_iter 7 when
+k < 0.1·min(N,d), else 4); exact = N·d² (scatter) + 9·d³ (eigensolver, nominal);
+numpy svd = 4·m·n² + 22·n³ (Golub & Van Loan's R-SVD count, m = max(N,d), n = min(N,d)).
+"""
+import argparse
+import json
+import os
+import resource
+import subprocess
+import sys
+import tempfile
+import time
+
+import numpy as np
+import threadpoolctl
+from sklearn.utils.extmath import randomized_svd
+
+ap = argparse.ArgumentParser()
+ap.add_argument("--bench", required=True)
+ap.add_argument("--repeat", type=int, default=5)
+ap.add_argument("--quick", action="store_true")
+opt = ap.parse_args()
+benches = opt.bench.split(",")
+R = opt.repeat
+tmp = tempfile.mkdtemp(prefix="pcasweep-bench-")
+
+
+def median_time(f):
+    ts = []
+    for _ in range(R):
+        t = time.perf_counter()
+        out = f()
+        ts.append(time.perf_counter() - t)
+    return float(np.median(ts)), out
+
+
+def synthetic(n, d, decay, seed=1):
+    rng = np.random.default_rng(seed)
+    r = min(n, d)
+    u, _ = np.linalg.qr(rng.standard_normal((n, r)))
+    v, _ = np.linalg.qr(rng.standard_normal((d, r)))
+    i = np.arange(r)
+    s = np.exp(-i / 20.0) if decay == "fast" else 1.0 / (1.0 + i)
+    a = (u * s) @ v.T
+    return a - a.mean(axis=0)
+
+
+def faces():
+    x = np.load("/usr/lib/python3/dist-packages/skimage/data/lfw_subset.npy").reshape(200, -1)
+    x = np.round(x * 65535.0)
+    return x - x.mean(axis=0)
+
+
+def rel_error(a, v, opt_err):
+    return np.linalg.norm(a - (a @ v) @ v.T) / opt_err
+
+
+def bench_json(exe, args):
+    r = subprocess.run([exe] + args, capture_output=True, text=True)
+    if r.returncode != 0:
+        raise SystemExit("pcasweep-bench failed: " + r.stderr)
+    return json.loads(r.stdout.strip().splitlines()[-1])
+
+
+print("numpy/OpenBLAS:", [(d["internal_api"], d.get("version"), d.get("architecture"), d["num_threads"])
+                          for d in threadpoolctl.threadpool_info()])
+cases = []
+if opt.quick:
+    cases = [("fast", 20000, 1024, [64]), ("slow", 20000, 1024, [64]), ("faces", 200, 625, [20])]
+else:
+    cases = [("fast", 20000, 1024, [16, 64, 256]), ("slow", 20000, 1024, [16, 64, 256]),
+             ("fast", 2000, 16384, [16, 64]), ("slow", 2000, 16384, [16, 64]), ("faces", 200, 625, [20])]
+
+gemm_cache = {}
+
+
+def floor_rate(n, d, l):
+    key = (n, d, l)
+    if key not in gemm_cache:
+        best = 0.0
+        for exe in benches:
+            g = bench_json(exe, ["gemm", "--n", str(n), "--d", str(d), "--l", str(l), "--repeat", str(R)])
+            best = max(best, g["double"]["a_times_omega_gflops"], g["double"]["at_times_y_gflops"])
+            print("  gemm %s %dx%d by %dx%d: double %.1f / %.1f GFLOP/s (A·Ω / Aᵀ·Y), float %.1f / %.1f"
+                  % (g["gemm"], n, d, d, l, g["double"]["a_times_omega_gflops"], g["double"]["at_times_y_gflops"],
+                     g["float"]["a_times_omega_gflops"], g["float"]["at_times_y_gflops"]))
+        gemm_cache[key] = best
+    return gemm_cache[key]
+
+
+rows = []
+for decay, n, d, ks in cases:
+    a = faces() if decay == "faces" else synthetic(n, d, decay)
+    name = "lfw faces (whole)" if decay == "faces" else "%s %dx%d" % (decay, n, d)
+    path = os.path.join(tmp, "a.npy")
+    np.save(path, np.asfortranarray(a))
+    t_np, (u, s, vt) = median_time(lambda: np.linalg.svd(a, full_matrices=False))
+    m_, n_ = max(n, d), min(n, d)
+    rows.append((name, "-", "numpy.linalg.svd", t_np, (4 * m_ * n_ ** 2 + 22 * n_ ** 3) / t_np / 1e9, 1.0, None, None, None))
+    print("%s: numpy svd %.3f s" % (name, t_np), flush=True)
+    for k in ks:
+        opt_err = np.sqrt(np.sum(s[k:] ** 2))
+        l = k + 10
+        n_iter = 7 if k < 0.1 * min(n, d) else 4
+        t_sk, (_, _, vt_sk) = median_time(lambda: randomized_svd(a, k, random_state=0))
+        e_sk = rel_error(a, vt_sk.T, opt_err)
+        rows.append((name, k, "sklearn randomized_svd", t_sk, (2 * n_iter + 2) * 2 * n * d * l / t_sk / 1e9, e_sk,
+                     None, None, None))
+        rate = floor_rate(n, d, l)
+        floor = 2 * 2 * n * d * l / (rate * 1e9)
+        for exe in benches:
+            comp = os.path.join(tmp, "v.npy")
+            j = bench_json(exe, ["solve", path, "--solver", "randomized", "--k", str(k), "--repeat", str(R),
+                                 "--components", comp])
+            e = rel_error(a, np.load(comp), opt_err)
+            t = j["seconds_median"]
+            rows.append((name, k, "ours randomized (%s, %d passes)" % (j["gemm"], j["passes"]), t,
+                         j["product_flops"] / t / 1e9, e, t_sk / t, t / floor, j["peak_rss_kb"]))
+            print("  k=%d ours %s %.3f s err %.6f, sklearn %.3f s err %.6f" % (k, j["gemm"], t, e, t_sk, e_sk), flush=True)
+        if d <= 2048:
+            comp = os.path.join(tmp, "v.npy")
+            j = bench_json(benches[0], ["solve", path, "--solver", "exact", "--k", str(k), "--repeat", str(R),
+                                        "--components", comp])
+            e = rel_error(a, np.load(comp), opt_err)
+            t = j["seconds_median"]
+            rows.append((name, k, "ours exact (%s)" % j["gemm"], t, (n * d * d + 9 * d ** 3) / t / 1e9, e, t_sk / t,
+                         None, j["peak_rss_kb"]))
+
+print()
+print("| matrix | k | solver | seconds | GFLOP/s | error/optimum | sklearn/ours | ours/floor | peak RSS MiB |")
+print("|---|---|---|---|---|---|---|---|---|")
+for name, k, solver, t, gf, e, sp, fl, rss in rows:
+    print("| %s | %s | %s | %.3f | %.1f | %.6f | %s | %s | %s |" % (
+        name, k, solver, t, gf, e, "%.2f" % sp if sp else "", "%.1f" % fl if fl else "",
+        "%.0f" % (rss / 1024) if rss else ""))
+print()
+print("python peak RSS: %.0f MiB" % (resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024))
