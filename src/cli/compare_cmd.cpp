@@ -1,4 +1,6 @@
 // pcasweep compare ORIGINAL OTHER: MSE, PSNR and SSIM of one image against another.
+#include <chrono>
+#include <ctime>
 #include <iostream>
 #include <memory>
 
@@ -35,7 +37,11 @@ Action setup_compare(CLI::App& sub) {
                         " in size, channels or bit depth; compare needs matching images");
     }
     const ImageQuality q = compare_images(a, b);
+    const auto start = std::chrono::steady_clock::now();
+    const std::clock_t cpu_start = std::clock();
     const SsimResult s = compute_ssim(a, b, !args->ssim_map.empty());
+    const double ssim_seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+    const double ssim_cpu_seconds = double(std::clock() - cpu_start) / CLOCKS_PER_SEC;  // all threads
     if (!args->ssim_map.empty()) write_png(args->ssim_map, ssim_map_image(s));
     if (args->json) {
       nlohmann::json j = {{"original", args->original},
@@ -44,6 +50,8 @@ Action setup_compare(CLI::App& sub) {
                           {"mse", q.mse},
                           {"psnr_db", json_real(q.psnr_db)},
                           {"ssim", json_real(s.ssim)},
+                          {"ssim_seconds", ssim_seconds},
+                          {"ssim_cpu_seconds", ssim_cpu_seconds},
                           {"channel_names", a.channel_names}};
       j["channel_ssim"] = nlohmann::json::array();
       for (double v : s.channel_ssim) j["channel_ssim"].push_back(json_real(v));

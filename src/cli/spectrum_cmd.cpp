@@ -5,9 +5,11 @@
 
 #include "cli/command.hpp"
 #include "cli/image_options.hpp"
+#include "cli/k_options.hpp"
 #include "cli/signal_options.hpp"
 #include "core/error.hpp"
 #include "pipeline/image_set.hpp"
+#include "io/atomic_file.hpp"
 
 namespace pcasweep::cli {
 
@@ -17,6 +19,8 @@ struct SpectrumArgs {
   std::vector<std::string> more;  // further images for --layout whole/bands
   int top = 0;
   ImageOptionText image;
+  KOptionText krules;
+  std::string out;
 };
 }  // namespace
 
@@ -34,11 +38,15 @@ Action setup_spectrum(CLI::App& sub) {
                  "also the default --rank)")
       ->check(CLI::NonNegativeNumber);
   add_image_options(sub, args->image);
+  add_k_options(sub, args->krules);
+  sub.add_option("--out,-o", args->out,
+                 "Also write scree.svg, cumulative.svg and rules.json (the k rules) into this folder");
   auto signal = std::make_shared<SignalOptionText>();
   add_signal_options(sub, *signal);  // after the image options: reuses their --layout if any
   return [args, signal, app = &sub]() {
     if (signal_input_requested(*app, *signal, args->input))
       return run_signal_spectrum(args->input, args->top, signal_settings(*signal, app));
+    const KChoiceSettings k_options = k_settings(args->krules);
     std::vector<std::string> paths{args->input};
     paths.insert(paths.end(), args->more.begin(), args->more.end());
     const ImageAnalysis a = analyze_image_files(paths, image_settings(args->image),
@@ -62,6 +70,19 @@ Action setup_spectrum(CLI::App& sub) {
     } else {
       std::cout << "\nsum of the " << a.basis.rank() << " computed eigenvalues     = " << format_real(sum)
                 << "\n(the remaining " << format_real(trace - sum) << " lies beyond the computed rank)\n";
+    }
+    const KChoice choice = choose_k(a, k_options);
+    std::cout << render_k_choice(choice);
+    if (!args->out.empty()) {
+      write_k_charts(a.basis, choice, args->krules.log_scale, args->input, args->out);
+      nlohmann::json rules = k_choice_json(choice);
+      rules["settings"] = k_settings_json(k_options, args->krules.log_scale);
+      write_file_atomic(args->out + "/rules.json", rules.dump(2) + "\n");
+      const int components_written = write_component_images(a, args->out);
+      std::cout << "wrote " << args->out << "/scree.svg, cumulative.svg, rules.json"
+                << (components_written > 0 ? ", components/ (" + std::to_string(components_written) + " images)"
+                                           : std::string())
+                << "\n";
     }
     return (!a.basis.complete() || rel <= 1e-9) ? 0 : 1;
   };

@@ -4,6 +4,7 @@
 
 #include "cli/command.hpp"
 #include "cli/image_options.hpp"
+#include "cli/k_options.hpp"
 #include "cli/signal_options.hpp"
 #include "core/error.hpp"
 #include "pipeline/image_set.hpp"
@@ -18,6 +19,8 @@ struct SweepArgs {
   std::string ks;
   bool quiet = false;
   ImageOptionText image;
+  KOptionText krules;
+  bool ssim_map = false;
 };
 }  // namespace
 
@@ -36,19 +39,29 @@ Action setup_sweep(CLI::App& sub) {
                  "d = patch rows x columns x channels)");
   sub.add_flag("--quiet,-q", args->quiet, "Print nothing on success");
   add_image_options(sub, args->image);
+  add_k_options(sub, args->krules);
+  sub.add_flag("--ssim-map", args->ssim_map,
+               "Also write <stem>.k<K>.ssim.png for each k: the local SSIM map, gray, 0..1 scaled to 0..255, "
+               "(H-10)x(W-10)");
   auto signal = std::make_shared<SignalOptionText>();
   add_signal_options(sub, *signal);  // after the image options: reuses their --layout if any
   return [args, signal, app = &sub]() {
     if (signal_input_requested(*app, *signal, args->input))
       return run_signal_sweep(args->input, args->out, args->ks, args->quiet, signal_settings(*signal, app));
     const ImageStudySettings settings = image_settings(args->image);
+    const KChoiceSettings k_options = k_settings(args->krules);
     std::vector<int> ks = args->ks.empty() ? std::vector<int>{} : parse_k_list(args->ks);
     std::vector<std::string> paths{args->input};
     paths.insert(paths.end(), args->more.begin(), args->more.end());
     ImageAnalysis analysis = analyze_image_files(paths, settings, ks);
     if (ks.empty()) ks = default_ks_for(analysis);
     check_ks_against(ks, analysis);
-    const auto rows = write_sweep(analysis, ks, args->out, image_settings_json(settings));
+    const KChoice choice = choose_k(analysis, k_options);
+    nlohmann::json settings_json = image_settings_json(settings);
+    settings_json["k_rules"] = k_settings_json(k_options, args->krules.log_scale);
+    const auto rows = write_sweep(analysis, ks, args->out, settings_json, {{"choose_k", k_choice_json(choice)}},
+                                  args->ssim_map);
+    write_k_charts(analysis.basis, choice, args->krules.log_scale, args->input, args->out);
     const int components_written = write_component_images(analysis, args->out);
     if (!args->quiet) {
       std::cout << args->input << ": " << analysis.image().width << "x" << analysis.image().height << ", "
@@ -58,6 +71,7 @@ Action setup_sweep(CLI::App& sub) {
                 << solver_lines(analysis.basis)
                 << render_console(sweep_table(rows, {}), 4)
                 << "(stored_values and ratio are an estimate of size in numbers kept, not bytes)\n"
+                << render_k_choice(choice)
                 << (components_written > 0 ? "components: " + std::to_string(components_written) +
                                                  " leading components as images in " + args->out +
                                                  "/components/ (mid-gray = 0)\n"

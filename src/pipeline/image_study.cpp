@@ -6,6 +6,7 @@
 #include <set>
 
 #include "core/error.hpp"
+#include "measure/ssim.hpp"
 #include "pipeline/image_set.hpp"
 #include "observe/raster.hpp"
 #include "reconstruct/reconstruct.hpp"
@@ -90,6 +91,9 @@ std::vector<SweepRow> sweep_ks(const ImageAnalysis& a, const std::vector<int>& k
       row.clipped_samples += clipped;
     }
     row.quality = compare_image_sets(a.sources, written);
+    const SsimResult structural = compute_ssim_sets(a.sources, written);
+    row.ssim = structural.ssim;
+    row.channel_ssim = structural.channel_ssim;
     row.energy_retained = cumulative(k - 1);
     row.stored_values = std::int64_t(k) * d + n * k + d;
     row.ratio = double(row.stored_values) / raw;
@@ -110,13 +114,13 @@ Table spectrum_table(const Basis& basis) {
 
 Table sweep_table(const std::vector<SweepRow>& rows, const std::vector<std::string>& channel_names) {
   Table t;
-  t.columns = {"k", "mse", "rmse", "psnr_db", "max_abs_error", "relative_error", "energy_retained",
+  t.columns = {"k", "mse", "rmse", "psnr_db", "ssim", "max_abs_error", "relative_error", "energy_retained",
                "stored_values", "ratio"};
   const bool per_channel = channel_names.size() > 1;
   if (per_channel)
     for (const auto& name : channel_names) t.columns.push_back("psnr_db_" + name);
   for (const auto& r : rows) {
-    std::vector<Cell> cells = {std::int64_t(r.k), r.quality.mse, r.quality.rmse, r.quality.psnr_db,
+    std::vector<Cell> cells = {std::int64_t(r.k), r.quality.mse, r.quality.rmse, r.quality.psnr_db, r.ssim,
                                r.quality.max_abs_error, r.quality.relative_error, r.energy_retained,
                                r.stored_values, r.ratio};
     if (per_channel)
@@ -166,7 +170,8 @@ std::string output_stem(const std::string& path) { return std::filesystem::path(
 namespace pcasweep {
 
 std::vector<SweepRow> write_sweep(const ImageAnalysis& a, const std::vector<int>& ks, const std::string& out_dir,
-                                  const nlohmann::json& settings) {
+                                  const nlohmann::json& settings, const nlohmann::json& extra_summary,
+                                  bool ssim_maps) {
   check_ks(ks, a.basis.rank());
   std::error_code ec;
   std::filesystem::create_directories(out_dir, ec);
@@ -174,10 +179,18 @@ std::vector<SweepRow> write_sweep(const ImageAnalysis& a, const std::vector<int>
   const auto path_in = [&](const std::string& name) { return (std::filesystem::path(out_dir) / name).string(); };
   auto rows = sweep_ks(a, ks, [&](int k, std::size_t source, const Image& image) {
     write_png(path_in(output_stem(a.inputs[source]) + ".k" + std::to_string(k) + ".png"), image);
+    if (ssim_maps) {
+      const SsimResult s = compute_ssim(a.sources[source], image, true);
+      if (!s.map.empty())
+        write_png(path_in(output_stem(a.inputs[source]) + ".k" + std::to_string(k) + ".ssim.png"), ssim_map_image(s));
+    }
   });
   write_file_atomic(path_in("spectrum.csv"), render_csv(spectrum_table(a.basis)));
   write_file_atomic(path_in("sweep.csv"), render_csv(sweep_table(rows, a.image().channel_names)));
-  write_file_atomic(path_in("summary.json"), sweep_summary(a, rows, settings).dump(2) + "\n");
+  nlohmann::json summary = sweep_summary(a, rows, settings);
+  if (extra_summary.is_object())
+    for (const auto& [key, value] : extra_summary.items()) summary[key] = value;
+  write_file_atomic(path_in("summary.json"), summary.dump(2) + "\n");
   return rows;
 }
 

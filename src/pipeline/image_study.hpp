@@ -61,6 +61,8 @@ void check_ks(const std::vector<int>& ks, Eigen::Index d);
 struct SweepRow {
   int k = 0;
   ImageQuality quality;           // measured on the rounded, clipped image
+  double ssim = 0.0;              // SSIM (measure/ssim.hpp) of the written image(s); NaN under 11x11
+  std::vector<double> channel_ssim;  // per channel
   double energy_retained = 0.0;   // cumulative proportion of variance at k
   std::int64_t stored_values = 0; // k·d + N·k + d (estimate of size, not bytes)
   double ratio = 0.0;             // stored_values / raw sample count
@@ -77,7 +79,7 @@ std::vector<SweepRow> sweep_ks(const ImageAnalysis& analysis, const std::vector<
 // Columns component, eigenvalue, proportion, cumulative.
 Table spectrum_table(const Basis& basis);
 
-// Columns k, mse, rmse, psnr_db, max_abs_error, relative_error, energy_retained,
+// Columns k, mse, rmse, psnr_db, ssim, max_abs_error, relative_error, energy_retained,
 // stored_values, ratio, then psnr_db_<channel> for images with more than one channel.
 Table sweep_table(const std::vector<SweepRow>& rows, const std::vector<std::string>& channel_names);
 
@@ -95,7 +97,12 @@ namespace pcasweep {
 // Runs sweep_ks and writes into `out_dir` (created if missing):
 // <stem>.k<K>.png for each k (16-bit stays 16-bit), spectrum.csv, sweep.csv
 // and summary.json, each written atomically. Returns the rows.
+// extra_summary (optional): an object whose keys are added to summary.json
+// (e.g. "choose_k" from pipeline/k_choice.hpp). ssim_maps: also write
+// <stem>.k<K>.ssim.png, the local SSIM map (gray, 0..1 scaled to 0..255, (H−10)×(W−10)).
 std::vector<SweepRow> write_sweep(const ImageAnalysis& analysis, const std::vector<int>& ks,
-                                  const std::string& out_dir, const nlohmann::json& settings);
+                                  const std::string& out_dir, const nlohmann::json& settings,
+                                  const nlohmann::json& extra_summary = nlohmann::json::object(),
+                                  bool ssim_maps = false);
 
 }  // namespace pcasweep
