@@ -47,7 +47,7 @@ Eigen::MatrixXd gaussian_matrix(Eigen::Index rows, Eigen::Index cols, std::uint6
   return g;
 }
 
-Eigen::MatrixXd orthonormalize_householder(Eigen::MatrixXd& M) {
+Eigen::MatrixXd orthonormalize(Eigen::MatrixXd& M) {
   const Eigen::Index m = M.rows(), l = M.cols();
   Eigen::HouseholderQR<Eigen::MatrixXd> qr(M);
   Eigen::MatrixXd r = qr.matrixQR().topRows(l).triangularView<Eigen::Upper>();
@@ -55,7 +55,7 @@ Eigen::MatrixXd orthonormalize_householder(Eigen::MatrixXd& M) {
   return r;
 }
 
-Eigen::MatrixXd orthonormalize(Eigen::MatrixXd& M, bool* used_householder) {
+Eigen::MatrixXd orthonormalize_cholesky_qr2(Eigen::MatrixXd& M, bool* fell_back) {
   // CholeskyQR2 (Fukaya, Nakatsukasa, Yanagisawa & Yamamoto, 2014): two
   // rounds of Gram → Cholesky → triangular solve. It is stable while
   // cond(M) stays well below u^(-1/2) ≈ 1e8; we fall back to Householder QR
@@ -79,8 +79,8 @@ Eigen::MatrixXd orthonormalize(Eigen::MatrixXd& M, bool* used_householder) {
     Eigen::MatrixXd gram = first.transpose() * first;
     ok = (gram - Eigen::MatrixXd::Identity(l, l)).cwiseAbs().maxCoeff() < 0.1 && cholesky_round(first, r2);
   }
-  if (used_householder) *used_householder = !ok;
-  if (!ok) return orthonormalize_householder(M);
+  if (fell_back) *fell_back = !ok;
+  if (!ok) return orthonormalize(M);
   M = std::move(first);
   return (r2 * r1).triangularView<Eigen::Upper>();
 }

@@ -6,8 +6,7 @@
 //   Ω  d×l Gaussian test matrix, l = min(k + p, N, d), from a counter-based
 //      generator: bit-identical for a seed whatever the thread count;
 //   passes alternate Y = A_c·W (N×l) and Z = A_cᵀ·Q (d×l), each followed by
-//      an orthonormalisation (CholeskyQR2, Householder QR when the block is
-//      too ill-conditioned for Cholesky);
+//      an orthonormalisation (Householder QR);
 //   the small SVD of the projected l×l factor gives σ; eigenvalues σ²/(N−1),
 //   components = right singular vectors of A_c, sign by apply_sign_convention.
 // The run ends after 2q+2 passes for a fixed q, or — the default, q = −1 —
@@ -56,12 +55,14 @@ Basis solve_randomized(const CenteredOperator& op, const RandomizedSettings& set
 Eigen::MatrixXd gaussian_matrix(Eigen::Index rows, Eigen::Index cols, std::uint64_t seed);
 
 // M: m×l, m >= l. Replaces M by Q (m×l, orthonormal columns) and returns R
-// (l×l upper triangular) with M = Q·R. CholeskyQR2 when the Gram matrix is
-// positive definite with room to spare; Householder QR otherwise.
-// `used_householder` (if given) is set to which path ran.
-Eigen::MatrixXd orthonormalize(Eigen::MatrixXd& M, bool* used_householder = nullptr);
+// (l×l upper triangular) with M = Q·R, by Householder QR (blocked, Eigen).
+// This is what the solver uses: measured faster here than CholeskyQR2 (see
+// docs/performance.md), and it needs no fallback for rank-deficient blocks.
+Eigen::MatrixXd orthonormalize(Eigen::MatrixXd& M);
 
-// Same, forced through Householder QR (for measurements and as the fallback).
-Eigen::MatrixXd orthonormalize_householder(Eigen::MatrixXd& M);
+// The same by CholeskyQR2 (two rounds of Gram → Cholesky → triangular solve),
+// kept for the measurement in pcasweep-bench; falls back to Householder when
+// the block is too ill-conditioned for Cholesky and then sets *fell_back.
+Eigen::MatrixXd orthonormalize_cholesky_qr2(Eigen::MatrixXd& M, bool* fell_back = nullptr);
 
 }  // namespace pcasweep

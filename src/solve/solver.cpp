@@ -62,9 +62,10 @@ Basis solve(const CenteredOperator& op, const SolverSettings& settings) {
     choice = SolverChoice::randomized;
     reason = "d = " + std::to_string(d) + ": the d×d covariance would not fit in " +
              std::to_string(int(kExactMemoryLimit / 1073741824.0)) + " GiB";
-  } else if (settings.rank == 0 && d <= kAlwaysExactDimension) {
+  } else if (d <= kAlwaysExactDimension) {
     choice = SolverChoice::exact;
-    reason = "d = " + std::to_string(d) + " is small: the d×d covariance is cheap and gives every component";
+    reason = "d = " + std::to_string(d) + " <= " + std::to_string(kAlwaysExactDimension) +
+             ": the d×d covariance is cheap here and gives every component (docs/performance.md)";
   } else if (cost.randomized_seconds < kCrossoverMargin * cost.exact_seconds) {
     choice = SolverChoice::randomized;
     reason = "predicted " + seconds_text(cost.randomized_seconds) + " for rank " + std::to_string(rank) +
