@@ -23,6 +23,7 @@ struct EncodeArgs {
   bool dct = false;
   int zstd_level = 19;
   bool quiet = false;
+  bool stats = false;
   ImageOptionText image;
 };
 }  // namespace
@@ -49,6 +50,9 @@ Action setup_encode(CLI::App& sub) {
   sub.add_option("--zstd-level", args->zstd_level, "zstd level for the entropy stage, 1..22 (default 19)")
       ->check(CLI::Range(1, 22));
   sub.add_flag("--quiet,-q", args->quiet, "Print nothing on success");
+  sub.add_flag("--stats", args->stats,
+               "Also print the entropy-stage figures: file size with each packing, the side information, and "
+               "the order-0 entropy of the quantised coefficients (docs/codec.md)");
   add_image_options(sub, args->image);
   return [args, t, app = &sub]() {
     ImageStudySettings settings = image_settings(args->image);
@@ -92,6 +96,16 @@ Action setup_encode(CLI::App& sub) {
                 << result.nominal_psnr_db << " dB, model " << psnr_from_mse(result.predicted_mse, image.max_value())
                 << " dB)\nwrote " << args->out << ": " << result.bytes.size() << " bytes, " << bpp
                 << " bits per pixel\n";
+    }
+    if (args->stats) {
+      std::cout << "packing: varint+zstd file " << result.varint_file_bytes << " bytes, planes+zstd file "
+                << result.planes_file_bytes << " bytes; kept "
+                << (result.packing == Packing::varint ? "varint" : "planes") << "\n"
+                << "side information before zstd (steps, indices, mean, basis columns): " << result.side_bytes
+                << " bytes\n"
+                << "order-0 entropy of the quantised coefficients (per component): "
+                << result.coefficient_entropy_bits / 8.0 << " bytes\n"
+                << "Gaussian model rate: " << result.gaussian_rate_bits << " bits per observation\n";
     }
     return 0;
   };

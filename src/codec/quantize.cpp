@@ -100,10 +100,12 @@ float component_scale(const Eigen::VectorXd& column) {
 }
 
 std::int16_t component_to_fixed(double value, float scale) {
-  const double r = std::round(value * 32767.0 / double(scale));
-  return std::int16_t(std::clamp(r, -32767.0, 32767.0));
+  const double r = std::round(value * kComponentLevels / double(scale));
+  return std::int16_t(std::clamp(r, -kComponentLevels, kComponentLevels));
 }
 
-double component_from_fixed(std::int16_t fixed, float scale) { return double(fixed) * double(scale) / 32767.0; }
+double component_from_fixed(std::int16_t fixed, float scale) {
+  return double(fixed) * double(scale) / kComponentLevels;
+}
 
 }  // namespace pcasweep

@@ -13,7 +13,8 @@
 // L²·10^(−P/10) (rounding and the high-rate model make the measured PSNR differ).
 // Side information precision (bytes counted in every file):
 //   mean       16-bit fixed point over [0, L]: m = round(μ·65535/L), μ̂ = m·L/65535
-//   component  per column a float32 scale s = max|v|, entries int16 round(v·32767/s)
+//   component  per column a float32 scale s = max|v|, entries round(v·A/s) with A = kComponentLevels,
+//              stored as int16 (|entry| ≤ A; docs/codec.md measures the choice of A)
 //   steps      float32
 #pragma once
 
@@ -61,6 +62,9 @@ inline double dequantize_coefficient(std::int32_t q, float step) { return double
 // Mean precision: 16-bit fixed point over [0, max_value].
 std::uint16_t mean_to_fixed(double mean, double max_value);
 double mean_from_fixed(std::uint16_t fixed, double max_value);
+
+// Largest magnitude of a stored basis entry (12-bit signed precision: 2·2047 + 1 levels).
+inline constexpr double kComponentLevels = 2047.0;
 
 // Component precision: float32 scale per column (max |v|, 1 if the column is zero), int16 entries.
 float component_scale(const Eigen::VectorXd& column);
