@@ -6,8 +6,9 @@
 #include <set>
 
 #include "core/error.hpp"
-#include "measure/ssim.hpp"
+#include "codec/image_codec.hpp"
 #include "pipeline/image_set.hpp"
+#include "measure/ssim.hpp"
 #include "observe/raster.hpp"
 #include "reconstruct/reconstruct.hpp"
 #include "solve/operator.hpp"
@@ -71,24 +72,48 @@ void check_ks(const std::vector<int>& ks, Eigen::Index d) {
   }
 }
 
-std::vector<SweepRow> sweep_ks(const ImageAnalysis& a, const std::vector<int>& ks, const ImageSink& on_image) {
+std::vector<SweepRow> sweep_ks(const ImageAnalysis& a, const std::vector<int>& ks, const ImageSink& on_image,
+                               const SweepCoding& coding) {
   check_ks(ks, a.basis.rank());
   const Eigen::VectorXd cumulative = cumulative_proportions(a.basis);
   const std::int64_t n = a.X.rows(), d = a.X.cols();
   double raw = 0.0;
   for (const auto& s : a.sources) raw += double(s.sample_count());
   ReconstructionSweep sweep(a.basis, a.X);
+  // The codec handles one image cut into patches; other layouts keep the unquantised path.
+  const auto* coded_layout =
+      coding.enabled && a.sources.size() == 1 ? dynamic_cast<const PatchLayout*>(a.layout.get()) : nullptr;
+  const double raw_bytes = coded_layout ? double(a.image().sample_count()) * (a.image().bit_depth / 8) : 0.0;
+  const double png_bytes = coded_layout ? double(encode_png(a.image()).size()) : 0.0;
   std::vector<SweepRow> rows;
   for (int k : ks) {
-    const Eigen::MatrixXd& xk = sweep.advance_to(k);
-    const std::vector<Raster> folded = a.layout->fold(xk);
     SweepRow row;
     row.k = k;
     std::vector<Image> written;
-    for (std::size_t i = 0; i < folded.size(); ++i) {
-      std::size_t clipped = 0;
-      written.push_back(quantize(folded[i], a.sources[i], &clipped));
-      row.clipped_samples += clipped;
+    if (coded_layout) {
+      // Real bytes: encode with the image's own basis, then measure what the decoder gives back.
+      CodecSettings settings;
+      settings.k = k;
+      settings.quality = coding.quality;
+      settings.zstd_level = coding.zstd_level;
+      BasisChoice choice;
+      choice.basis = &a.basis;
+      const EncodeResult encoded = encode_image(a.image(), coded_layout->options(), choice, settings, a.input());
+      written.push_back(decode_coded_image(encoded.bytes, a.input(), nullptr, nullptr, &row.clipped_samples));
+      row.bytes = std::int64_t(encoded.bytes.size());
+      row.coded_components = encoded.coded;
+      row.bits_per_pixel = 8.0 * double(encoded.bytes.size()) / pixel_count(a.image());
+      row.compression_ratio = raw_bytes / double(encoded.bytes.size());
+      row.ratio_to_png = png_bytes / double(encoded.bytes.size());
+      if (coding.on_coded) coding.on_coded(k, encoded.bytes);
+    } else {
+      const Eigen::MatrixXd& xk = sweep.advance_to(k);
+      const std::vector<Raster> folded = a.layout->fold(xk);
+      for (std::size_t i = 0; i < folded.size(); ++i) {
+        std::size_t clipped = 0;
+        written.push_back(quantize(folded[i], a.sources[i], &clipped));
+        row.clipped_samples += clipped;
+      }
     }
     row.quality = compare_image_sets(a.sources, written);
     const SsimResult structural = compute_ssim_sets(a.sources, written);
@@ -115,7 +140,8 @@ Table spectrum_table(const Basis& basis) {
 Table sweep_table(const std::vector<SweepRow>& rows, const std::vector<std::string>& channel_names) {
   Table t;
   t.columns = {"k", "mse", "rmse", "psnr_db", "ssim", "max_abs_error", "relative_error", "energy_retained",
-               "stored_values", "ratio"};
+               "stored_values_estimate", "ratio_estimate", "bytes", "coded_components", "bits_per_pixel",
+               "compression_ratio", "ratio_to_png"};
   const bool per_channel = channel_names.size() > 1;
   if (per_channel)
     for (const auto& name : channel_names) t.columns.push_back("psnr_db_" + name);
@@ -123,6 +149,12 @@ Table sweep_table(const std::vector<SweepRow>& rows, const std::vector<std::stri
     std::vector<Cell> cells = {std::int64_t(r.k), r.quality.mse, r.quality.rmse, r.quality.psnr_db, r.ssim,
                                r.quality.max_abs_error, r.quality.relative_error, r.energy_retained,
                                r.stored_values, r.ratio};
+    if (r.bytes >= 0) {
+      cells.insert(cells.end(), {Cell{r.bytes}, Cell{std::int64_t(r.coded_components)}, Cell{r.bits_per_pixel},
+                                 Cell{r.compression_ratio}, Cell{r.ratio_to_png}});
+    } else {
+      cells.insert(cells.end(), 5, Cell{});
+    }
     if (per_channel)
       for (double v : r.quality.channel_psnr_db) cells.push_back(v);
     t.add_row(std::move(cells));
@@ -171,12 +203,19 @@ namespace pcasweep {
 
 std::vector<SweepRow> write_sweep(const ImageAnalysis& a, const std::vector<int>& ks, const std::string& out_dir,
                                   const nlohmann::json& settings, const nlohmann::json& extra_summary,
-                                  bool ssim_maps) {
+                                  bool ssim_maps, const SweepCoding& coding) {
   check_ks(ks, a.basis.rank());
   std::error_code ec;
   std::filesystem::create_directories(out_dir, ec);
   if (ec) throw data_error(out_dir + ": cannot create output folder: " + ec.message());
   const auto path_in = [&](const std::string& name) { return (std::filesystem::path(out_dir) / name).string(); };
+  SweepCoding coding_with_files = coding;
+  if (coding.enabled) {
+    coding_with_files.on_coded = [&](int k, const std::string& bytes) {
+      write_file_atomic(path_in(output_stem(a.input()) + ".k" + std::to_string(k) + ".pcsc"), bytes);
+      if (coding.on_coded) coding.on_coded(k, bytes);
+    };
+  }
   auto rows = sweep_ks(a, ks, [&](int k, std::size_t source, const Image& image) {
     write_png(path_in(output_stem(a.inputs[source]) + ".k" + std::to_string(k) + ".png"), image);
     if (ssim_maps) {
@@ -184,7 +223,7 @@ std::vector<SweepRow> write_sweep(const ImageAnalysis& a, const std::vector<int>
       if (!s.map.empty())
         write_png(path_in(output_stem(a.inputs[source]) + ".k" + std::to_string(k) + ".ssim.png"), ssim_map_image(s));
     }
-  });
+  }, coding_with_files);
   write_file_atomic(path_in("spectrum.csv"), render_csv(spectrum_table(a.basis)));
   write_file_atomic(path_in("sweep.csv"), render_csv(sweep_table(rows, a.image().channel_names)));
   nlohmann::json summary = sweep_summary(a, rows, settings);

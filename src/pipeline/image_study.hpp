@@ -7,6 +7,7 @@
 // output is written, so a bad input leaves no files behind.
 #pragma once
 
+#include <cmath>
 #include <functional>
 #include <memory>
 #include <nlohmann/json.hpp>
@@ -66,21 +67,38 @@ struct SweepRow {
   double energy_retained = 0.0;   // cumulative proportion of variance at k
   std::int64_t stored_values = 0; // k·d + N·k + d (estimate of size, not bytes)
   double ratio = 0.0;             // stored_values / raw sample count
+  // Real bytes (codec/, see docs/codec.md), filled when the sweep encodes: one image, patches layout.
+  std::int64_t bytes = -1;        // size of the coded file (-1: not encoded)
+  int coded_components = 0;       // components of the first k above the water level
+  double bits_per_pixel = NAN;    // 8·bytes / (width·height)
+  double compression_ratio = NAN; // raw samples at the source bit depth / bytes
+  double ratio_to_png = NAN;      // lossless PNG of the original (encode_png) / bytes
   std::size_t clipped_samples = 0;
 };
 
 // For each k (ascending, each in [1, r]): reconstruct, fold, round and clip,
 // measure against the originals (all sources pooled). `on_image(k, source
 // index, image)` (optional) receives each written-to-be image. Returns one row per k.
+// With coding enabled (sweep_cmd does; the library default is off) and one image cut into patches, each k is encoded
+// (codec/image_codec.hpp, own basis, --quality) and the quality is measured on the DECODED
+// image; `coding.on_coded(k, bytes)` receives each file. Otherwise X̂_k is measured unquantised.
 using ImageSink = std::function<void(int k, std::size_t source, const Image& image)>;
+struct SweepCoding {
+  bool enabled = false;
+  int quality = 90;      // codec/quantize.hpp: water level at 10 + 0.4·quality dB
+  int zstd_level = 19;
+  std::function<void(int k, const std::string& bytes)> on_coded;
+};
 std::vector<SweepRow> sweep_ks(const ImageAnalysis& analysis, const std::vector<int>& ks,
-                               const ImageSink& on_image = {});
+                               const ImageSink& on_image = {}, const SweepCoding& coding = {});
 
 // Columns component, eigenvalue, proportion, cumulative.
 Table spectrum_table(const Basis& basis);
 
 // Columns k, mse, rmse, psnr_db, ssim, max_abs_error, relative_error, energy_retained,
-// stored_values, ratio, then psnr_db_<channel> for images with more than one channel.
+// stored_values_estimate, ratio_estimate (numbers kept, not bytes), bytes, coded_components,
+// bits_per_pixel, compression_ratio, ratio_to_png (empty when the sweep did not encode),
+// then psnr_db_<channel> for images with more than one channel.
 Table sweep_table(const std::vector<SweepRow>& rows, const std::vector<std::string>& channel_names);
 
 // Everything about one sweep, with the settings used.
@@ -96,13 +114,15 @@ namespace pcasweep {
 
 // Runs sweep_ks and writes into `out_dir` (created if missing):
 // <stem>.k<K>.png for each k (16-bit stays 16-bit), spectrum.csv, sweep.csv
-// and summary.json, each written atomically. Returns the rows.
+// and summary.json, each written atomically. Returns the rows. With coding
+// enabled also <stem>.k<K>.pcsc, the coded file whose size is the row's bytes
+// and whose decoding is the <stem>.k<K>.png written.
 // extra_summary (optional): an object whose keys are added to summary.json
 // (e.g. "choose_k" from pipeline/k_choice.hpp). ssim_maps: also write
 // <stem>.k<K>.ssim.png, the local SSIM map (gray, 0..1 scaled to 0..255, (H−10)×(W−10)).
 std::vector<SweepRow> write_sweep(const ImageAnalysis& analysis, const std::vector<int>& ks,
                                   const std::string& out_dir, const nlohmann::json& settings,
                                   const nlohmann::json& extra_summary = nlohmann::json::object(),
-                                  bool ssim_maps = false);
+                                  bool ssim_maps = false, const SweepCoding& coding = {});
 
 }  // namespace pcasweep
