@@ -80,9 +80,9 @@ TEST_CASE("quality-target search equals an exhaustive search over every k") {
     const ImageAnalysis a = analyse(*c.image, c.patch, c.stride);
     const TargetSearch s = search_quality_target(a, c.target);
     const int exhaustive = exhaustive_quality_k(a, c.target);
-    INFO(c.name << ": search k = " << s.suggestion.k << " after " << s.evaluated.size()
+    INFO(std::string(c.name) << ": search k = " << s.suggestion.k << " after " << s.evaluated.size()
                 << " reconstructions, exhaustive k = " << exhaustive << " of d = " << a.basis.rank());
-    MESSAGE(c.name << ": search k = " << s.suggestion.k << " (" << s.evaluated.size() << " reconstructions, bracket "
+    MESSAGE(std::string(c.name) << ": search k = " << s.suggestion.k << " (" << s.evaluated.size() << " reconstructions, bracket "
                    << s.bracket_low << ".." << s.bracket_high << "), exhaustive k = " << exhaustive);
     CHECK(exhaustive > 0);
     CHECK(s.suggestion.k == exhaustive);
