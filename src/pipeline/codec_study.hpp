@@ -71,8 +71,8 @@ double psnr_at_rate(const std::vector<RdPoint>& points, const std::string& metho
 // Columns method, quality, coded, bytes, bits_per_pixel, psnr_db, ssim, file.
 Table rd_table(const std::vector<RdPoint>& points);
 
-// "at 1.0 bpp (interpolated along each curve), PCA (k = 12 coded) gives 35.1 dB, JPEG 34.0 dB, DCT 34.5 dB;
-// the Gaussian bound 38.2 dB".
+// "at 1 bpp (linear interpolation along each measured curve), PCA (12 components coded) gives 35.1 dB, JPEG 34.0 dB, DCT 34.5 dB;
+// Gaussian R(D) from the eigenvalues 38.2 dB".
 std::string rd_sentence(const std::vector<RdPoint>& points, double bpp);
 
 // What write_rate_distortion() produced.
