@@ -5,6 +5,7 @@
 
 #include <filesystem>
 #include <fstream>
+#include <unistd.h>
 
 #include "io/image.hpp"
 #include "io/inputs.hpp"
