@@ -26,6 +26,7 @@ struct BatchArgs {
   double target_ssim = -1.0;
   int report_sample = 6;
   bool no_report = false;
+  int quality = 0;
   bool quiet = false;
   ImageOptionText image;
 };
@@ -59,6 +60,11 @@ Action setup_batch(CLI::App& sub) {
   sub.add_option("--report-sample", a->report_sample,
                  "Files shown with images in report.html (default 6; evenly spaced, plus the worst)");
   sub.add_flag("--no-report", a->no_report, "Do not write report.html");
+  sub.add_option("--quality", a->quality,
+                 "Per-file basis: encode every k with the codec at this quality 1..100 and measure the decoded "
+                 "image (fills bytes and bits_per_pixel; default: no coding, quality of the unquantised "
+                 "reconstruction)")
+      ->check(CLI::Range(1, 100));
   sub.add_flag("--quiet,-q", a->quiet, "No progress and no summary on success (failures are still reported)");
   add_image_options(sub, a->image);
   return [a]() {
@@ -84,6 +90,10 @@ Action setup_batch(CLI::App& sub) {
     if (a->report_sample < 0) throw usage_error("--report-sample must be 0 or more");
     s.report_sample = a->report_sample;
     s.write_report = !a->no_report;
+    if (a->quality > 0) {
+      s.coding.enabled = true;
+      s.coding.quality = a->quality;
+    }
     s.settings_json = image_settings_json(s.image);
     s.settings_json["inputs"] = a->inputs;
     s.settings_json["recursive"] = a->recursive;
@@ -95,6 +105,7 @@ Action setup_batch(CLI::App& sub) {
       s.settings_json["seed"] = s.seed;
     }
     s.settings_json["threads"] = s.threads;
+    s.settings_json["quality"] = a->quality > 0 ? nlohmann::json(a->quality) : nlohmann::json();
     s.settings_json["layout_text"] =
         std::to_string(s.image.patch.patch_height) + "x" + std::to_string(s.image.patch.patch_width) + " patches, stride " +
         std::to_string(s.image.patch.stride_y ? s.image.patch.stride_y : s.image.patch.patch_height) + "x" +

@@ -155,6 +155,8 @@ BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settin
   if (settings.basis == BasisMode::shared && settings.train_files.empty() &&
       !(settings.train_fraction > 0.0 && settings.train_fraction <= 1.0))
     throw usage_error("--train-fraction must be in (0, 1]");
+  if (settings.coding.enabled && settings.basis == BasisMode::shared)
+    throw usage_error("--quality (coded bytes) works with --basis per-file only: the codec embeds each file's own basis");
   if (settings.target.ssim) {
     const Table probe = sweep_table({}, {});
     if (column_index(probe, kSsimColumn) < 0)
@@ -268,7 +270,7 @@ BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settin
             a = analyze_image(f.path, settings.image);
           }
           const std::vector<int> ks = file_ks(settings.ks, a.basis.rank());
-          std::vector<SweepRow> rows = sweep_ks(a, ks);
+          std::vector<SweepRow> rows = sweep_ks(a, ks, {}, result.shared ? SweepCoding{} : settings.coding);
           if (result.shared) {
             const double raw = double(a.image().sample_count());
             for (auto& r : rows) {

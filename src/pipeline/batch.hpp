@@ -46,6 +46,11 @@ struct BatchSettings {
   int report_sample = 6;                   // files shown with images in report.html
   int live_viewers = 3;                    // of those, how many get a slider
   bool write_report = true;
+  // Per-file basis only: encode every k (codec/, own basis) at coding.quality and
+  // measure the decoded image, filling the bytes and bits_per_pixel columns.
+  // Off by default: the quality columns are then those of the unquantised
+  // reconstruction, which is also what the report's live slider rebuilds.
+  SweepCoding coding;
   nlohmann::json settings_json;            // echoed into summary.json
 };
 

@@ -440,7 +440,10 @@ nlohmann::json write_batch_outputs(const BatchResult& r, const BatchSettings& s,
                     std::to_string(kLiveViewerMaxDimension) +
                     " are rebuilt live in your browser from the embedded mean, components and coefficients (float32), "
                     "rounded and clipped like the written files; the PSNR beside it is computed on that result. "
-                    "Larger images step between precomputed reconstructions at the swept k. Viewers for the first " +
+                    "Larger images step between precomputed reconstructions at the swept k." +
+                    std::string(s.coding.enabled ? " With --quality the tables measure the decoded (quantised) "
+                                                   "images; the sliders show the unquantised reconstruction." : "") +
+                    " Viewers for the first " +
                     std::to_string(s.live_viewers) + " sampled file(s).";
     bool charts_done = false;
     for (std::size_t si = 0; si < sample.size(); ++si) {

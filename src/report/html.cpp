@@ -122,7 +122,8 @@ figcaption { font-size: .85rem; color: var(--muted); max-width: 360px; }
 img.pixelated { image-rendering: pixelated; width: 64px; height: 64px; }
 .components figure.thumb img { width: 64px; }
 .viewer { border: 1px solid var(--rule); border-radius: 6px; padding: .6rem .9rem; margin: 1rem 0; }
-.viewer .pair { display: flex; flex-wrap: wrap; gap: 1rem; } .viewer .pair figure { margin: 0; }
+.viewer .pair { display: flex; flex-wrap: wrap; gap: 1rem; } .viewer .pair figure { margin: 0; flex: 0 1 360px; }
+.viewer .pair img, .viewer .pair canvas { width: 100%; max-width: 360px; image-rendering: auto; }
 .controls { display: flex; flex-wrap: wrap; align-items: center; gap: .8rem; margin-top: .6rem; }
 .controls input[type=range] { width: min(480px, 90vw); accent-color: var(--accent); }
 .controls input[type=range]:focus-visible { outline: 3px solid var(--warn); outline-offset: 2px; }

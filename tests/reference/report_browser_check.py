@@ -117,7 +117,7 @@ artefacts = os.path.join(os.path.dirname(PCASWEEP), "test-artifacts")
 os.makedirs(artefacts, exist_ok=True)
 shot = os.path.join(artefacts, "report.png")
 subprocess.run([chromium] + flags + ["--user-data-dir=" + tempfile.mkdtemp(prefix="chromium-profile-"),
-                                     "--window-size=1280,4200", "--hide-scrollbars", "--virtual-time-budget=20000",
+                                     "--window-size=1280,9000", "--hide-scrollbars", "--virtual-time-budget=20000",
                                      "--screenshot=" + shot, "file://" + report],
                capture_output=True, text=True, timeout=120)
 check(os.path.exists(shot) and os.path.getsize(shot) > 10000, f"screenshot saved: {shot}")
