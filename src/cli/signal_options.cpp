@@ -4,6 +4,7 @@
 #include <iostream>
 
 #include "core/error.hpp"
+#include "measure/choose_k.hpp"
 #include "pipeline/image_study.hpp"  // parse_k_list, default_ks, check_ks, spectrum_table
 
 namespace pcasweep::cli {
@@ -134,6 +135,9 @@ int run_signal_sweep(const std::string& input, const std::string& out, const std
       if (r.clipped_samples > 0)
         std::cout << "k = " << r.k << ": " << r.clipped_samples << " sample(s) clipped to the "
                   << describe_sample_type(a.signal.sample_type) << " range\n";
+    for (const auto& rule : spectrum_rules(a.basis, {0.90, 0.95, 0.99, 0.999}))
+      std::cout << "rule " << rule.label << ": k = " << (rule.k < 0 ? std::string("n/a") : std::to_string(rule.k))
+                << (rule.lower_bound ? " (at least)" : "") << "\n";
     std::cout << "(snr_db and prd_percent use the plain energy; prd_mean_removed_percent removes each channel's "
                  "mean; all on the stored values)\n"
               << "wrote " << out << "/\n";

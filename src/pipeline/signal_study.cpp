@@ -6,6 +6,7 @@
 
 #include "core/error.hpp"
 #include "io/atomic_file.hpp"
+#include "measure/choose_k.hpp"
 #include "pipeline/image_study.hpp"  // check_ks, spectrum_table, output_stem
 #include "reconstruct/reconstruct.hpp"
 #include "report/excerpt_plot.hpp"
@@ -114,6 +115,13 @@ nlohmann::json signal_sweep_summary(const SignalAnalysis& a, const std::vector<S
                    {"sum_of_eigenvalues", a.basis.eigenvalues.sum()},
                    {"rows", to_json(spectrum_table(a.basis))}};
   j["sweep"] = to_json(signal_sweep_table(rows, s.channel_names));
+  // The spectrum rules for k (measure/choose_k.hpp), as for images.
+  const auto rules = spectrum_rules(a.basis, {0.90, 0.95, 0.99, 0.999});
+  nlohmann::json rule_rows = nlohmann::json::array();
+  for (const auto& r : rules)
+    rule_rows.push_back({{"rule", r.rule}, {"label", r.label}, {"k", r.k}, {"lower_bound", r.lower_bound},
+                         {"meaning", r.meaning}, {"note", r.note}});
+  j["k_rules"] = {{"rules", rule_rows}, {"agreement", rules_agreement(rules)}};
   j["metric_definitions"] = {
       {"snr_db", "10*log10(sum x^2 / sum (x - xhat)^2)"},
       {"prd_percent", "plain PRD: 100*sqrt(sum (x - xhat)^2 / sum x^2)"},
