@@ -35,8 +35,77 @@ bool has_image_extension(const std::string& path) {
   return std::any_of(std::begin(known), std::end(known), [&](const char* k) { return ext == k; });
 }
 
+namespace {
+
+// Binary PNM (P5 gray, P6 RGB) is read here rather than through stb_image:
+// the stb version Debian ships neither checks that the raster is complete
+// (a truncated file decodes from uninitialised memory) nor swaps 16-bit
+// samples, which the Netpbm format stores most significant byte first.
+// Returns false if `bytes` is not binary PNM; throws Error(data) if it is but is bad.
+bool decode_binary_pnm(const std::string& bytes, const std::string& name, Image& image) {
+  if (bytes.size() < 2 || bytes[0] != 'P' || (bytes[1] != '5' && bytes[1] != '6')) return false;
+  std::size_t pos = 2;
+  auto next_number = [&](const char* what) -> long {
+    while (pos < bytes.size()) {
+      const char ch = bytes[pos];
+      if (ch == '#') {
+        while (pos < bytes.size() && bytes[pos] != '\n') ++pos;
+      } else if (std::isspace(static_cast<unsigned char>(ch))) {
+        ++pos;
+      } else {
+        break;
+      }
+    }
+    long value = 0;
+    std::size_t digits = 0;
+    while (pos < bytes.size() && std::isdigit(static_cast<unsigned char>(bytes[pos])) && digits < 9) {
+      value = value * 10 + (bytes[pos++] - '0');
+      ++digits;
+    }
+    if (digits == 0) throw data_error(name + ": PNM header has no valid " + std::string(what));
+    return value;
+  };
+  const long width = next_number("width"), height = next_number("height"), maxval = next_number("maximum value");
+  if (width < 1 || height < 1) throw data_error(name + ": PNM header declares an impossible size");
+  if (maxval < 1 || maxval > 65535) throw data_error(name + ": PNM maximum value must be 1..65535");
+  if (pos >= bytes.size() || !std::isspace(static_cast<unsigned char>(bytes[pos]))) {
+    throw data_error(name + ": PNM header is not followed by the raster");
+  }
+  ++pos;  // the single whitespace byte before the raster
+  const int channels = bytes[1] == '5' ? 1 : 3;
+  const int bytes_per_sample = maxval < 256 ? 1 : 2;
+  const std::size_t samples = std::size_t(width) * std::size_t(height) * channels;
+  if (samples > kMaxImageSamples) {
+    throw data_error(name + ": image too large (" + std::to_string(width) + "x" + std::to_string(height) + ")");
+  }
+  const std::size_t needed = samples * bytes_per_sample;
+  if (bytes.size() - pos < needed) {
+    throw data_error(name + ": truncated PNM: the header promises " + std::to_string(needed) +
+                     " bytes of samples, the file holds " + std::to_string(bytes.size() - pos));
+  }
+  image.width = int(width);
+  image.height = int(height);
+  image.channels = channels;
+  image.bit_depth = bytes_per_sample == 2 ? 16 : 8;
+  image.samples.resize(samples);
+  const auto* raster = reinterpret_cast<const unsigned char*>(bytes.data() + pos);
+  for (std::size_t i = 0; i < samples; ++i) {
+    const unsigned v = bytes_per_sample == 2 ? (unsigned(raster[2 * i]) << 8) | raster[2 * i + 1] : raster[i];
+    if (long(v) > maxval) throw data_error(name + ": PNM sample above the declared maximum value");
+    image.samples[i] = static_cast<std::uint16_t>(v);
+  }
+  image.channel_names = default_channel_names(channels);
+  return true;
+}
+
+}  // namespace
+
 Image decode_image(const std::string& bytes, const std::string& name, const ImageReadOptions& options) {
   if (bytes.empty()) throw data_error(name + ": empty file");
+  {
+    Image pnm;
+    if (decode_binary_pnm(bytes, name, pnm)) return pnm;  // no alpha in P5/P6
+  }
   const auto* data = reinterpret_cast<const stbi_uc*>(bytes.data());
   if (bytes.size() > std::size_t(INT32_MAX)) throw data_error(name + ": file too large");
   const int len = static_cast<int>(bytes.size());
