@@ -24,6 +24,7 @@ struct SweepArgs {
   bool ssim_map = false;
   int quality = 90;
   bool no_rd = false;
+  bool no_codec = false;
 };
 }  // namespace
 
@@ -50,6 +51,9 @@ Action setup_sweep(CLI::App& sub) {
                  "Codec quality 1..100 for the bytes columns: every k is encoded at this quality "
                  "(water level at 10 + 0.4·Q dB) and measured after decoding (default 90)")
       ->check(CLI::Range(1, 100));
+  sub.add_flag("--no-codec", args->no_codec,
+               "Measure the plain reconstruction at each k (rounded and clipped, as <stem>.k<K>.png) instead of "
+               "the decoded file; no bytes columns. At k = d this is the input, bit for bit");
   sub.add_flag("--no-rd", args->no_rd,
                "Skip the rate-distortion comparison (rd.csv, rd.svg, jpeg/: PCA vs JPEG vs DCT vs the bound)");
   auto signal = std::make_shared<SignalOptionText>();
@@ -69,12 +73,14 @@ Action setup_sweep(CLI::App& sub) {
     nlohmann::json settings_json = image_settings_json(settings);
     settings_json["k_rules"] = k_settings_json(k_options, args->krules.log_scale);
     SweepCoding coding;
-    coding.enabled = true;
+    coding.enabled = !args->no_codec;
     coding.quality = args->quality;
     settings_json["quality"] = args->quality;
     nlohmann::json extra = {{"choose_k", k_choice_json(choice)}};
     const bool codable =
         analysis.sources.size() == 1 && dynamic_cast<const PatchLayout*>(analysis.layout.get()) != nullptr;
+    settings_json["measured_on"] =
+        args->no_codec || !codable ? "reconstruction rounded to the bit depth" : "decoded file";
     std::string rd_line;
     if (codable && !args->no_rd) {
       const RdReport rd = write_rate_distortion(analysis, RdSettings{}, args->out);
@@ -91,9 +97,13 @@ Action setup_sweep(CLI::App& sub) {
                 << "; N = " << analysis.X.rows() << ", d = " << analysis.X.cols() << "\n"
                 << solver_lines(analysis.basis)
                 << render_console(sweep_table(rows, {}), 4)
-                << "(stored_values_estimate and ratio_estimate count numbers kept, not bytes; bytes is the size "
-                   "of the coded file <stem>.k<K>.pcsc at --quality "
-                << args->quality << ", and the quality columns are measured on its decoding)\n"
+                << (args->no_codec || !codable
+                        ? std::string("(stored_values_estimate and ratio_estimate count numbers kept, not bytes; "
+                                      "the quality columns are measured on the plain reconstruction)\n")
+                        : "(stored_values_estimate and ratio_estimate count numbers kept, not bytes; bytes is the "
+                          "size of the coded file <stem>.k<K>.pcsc at --quality " +
+                              std::to_string(args->quality) +
+                              ", and the quality columns are measured on its decoding)\n")
                 << rd_line
                 << render_k_choice(choice)
                 << (components_written > 0 ? "components: " + std::to_string(components_written) +
