@@ -5,6 +5,7 @@
 #include <vector>
 
 #include "core/error.hpp"
+#include "report/html.hpp"  // html_escape: the same escaping serves SVG text
 #include "report/svg.hpp"
 
 namespace pcasweep {
@@ -12,20 +13,6 @@ namespace pcasweep {
 namespace {
 
 constexpr int kWidth = 1000, kSignalHeight = 300, kResidualHeight = 230, kHeader = 70;
-
-std::string escape(const std::string& text) {
-  std::string out;
-  for (char ch : text) {
-    switch (ch) {
-      case '&': out += "&amp;"; break;
-      case '<': out += "&lt;"; break;
-      case '>': out += "&gt;"; break;
-      case '"': out += "&quot;"; break;
-      default: out += ch;
-    }
-  }
-  return out;
-}
 
 // Replaces every occurrence of `from` in `text` by `to`.
 void replace_all(std::string& text, const std::string& from, const std::string& to) {
@@ -68,10 +55,10 @@ std::string render_excerpt_svg(const ExcerptPlot& plot) {
          std::to_string(height) + "\" viewBox=\"0 0 " + std::to_string(kWidth) + " " + std::to_string(height) +
          "\" font-family=\"DejaVu Sans, Helvetica, Arial, sans-serif\">\n";
   svg += "<rect width=\"100%\" height=\"100%\" fill=\"white\"/>\n";
-  svg += "<text x=\"20\" y=\"30\" font-size=\"19\" font-weight=\"bold\">" + escape(plot.title) + "</text>\n";
+  svg += "<text x=\"20\" y=\"30\" font-size=\"19\" font-weight=\"bold\">" + html_escape(plot.title) + "</text>\n";
   for (std::size_t i = 0; i < lines.size(); ++i)
     svg += "<text x=\"20\" y=\"" + std::to_string(54 + 20 * i) + "\" font-size=\"14\" fill=\"#444\">" +
-           escape(lines[i]) + "</text>\n";
+           html_escape(lines[i]) + "</text>\n";
   const auto& palette = okabe_ito_palette();
   int y = header, index = 0;
   for (const auto& c : plot.channels) {
