@@ -79,7 +79,7 @@ Action setup_demo(CLI::App& sub) {
     std::cout << "\n" << images.size() + recordings.size() - failures << " of " << images.size() + recordings.size()
               << " samples swept in "
               << format_real(seconds, 3) << " s; outputs in " << args->out << "/\n"
-              << "(stored_values and ratio estimate size in numbers kept, not bytes)\n";
+              << "(stored_values_estimate and ratio_estimate count numbers kept, not bytes; the quality columns are measured on the plain reconstruction)\n";
     // The same samples as one batch (pipeline/batch.hpp): a k for all of them and report.html.
     BatchSettings batch;
     batch.image = settings;

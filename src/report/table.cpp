@@ -70,6 +70,12 @@ std::string render_csv(const Table& table) {
 
 std::string render_console(const Table& table, int decimals) {
   const std::size_t n = table.columns.size();
+  // A column with no value in any row (say, bytes when nothing was coded)
+  // only widens the terminal table; CSV and JSON keep it.
+  std::vector<bool> shown(n, table.rows.empty());
+  for (const auto& row : table.rows)
+    for (std::size_t i = 0; i < n; ++i)
+      if (!std::holds_alternative<std::monostate>(row[i])) shown[i] = true;
   std::vector<std::vector<std::string>> text;
   std::vector<std::size_t> width(n);
   std::vector<bool> text_column(n, false);
@@ -87,13 +93,16 @@ std::string render_console(const Table& table, int decimals) {
     const std::string fill(w > s.size() ? w - s.size() : 0, ' ');
     return left ? s + fill : fill + s;
   };
-  std::string out;
-  for (std::size_t i = 0; i < n; ++i) out += (i ? "  " : "") + pad(table.columns[i], width[i], text_column[i]);
-  out += "\n";
-  for (const auto& line : text) {
-    for (std::size_t i = 0; i < n; ++i) out += (i ? "  " : "") + pad(line[i], width[i], text_column[i]);
-    out += "\n";
-  }
+  auto render_line = [&](const std::vector<std::string>& cells) {
+    std::string line;
+    for (std::size_t i = 0; i < n; ++i) {
+      if (!shown[i]) continue;
+      line += (line.empty() ? "" : "  ") + pad(cells[i], width[i], text_column[i]);
+    }
+    return line + "\n";
+  };
+  std::string out = render_line(table.columns);
+  for (const auto& line : text) out += render_line(line);
   return out;
 }
 

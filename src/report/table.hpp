@@ -32,7 +32,8 @@ std::string format_real(double value, int significant = 10);
 // RFC 4180 CSV: header line, one line per row, "\n" line ends, text quoted when needed.
 std::string render_csv(const Table& table);
 
-// Aligned text for a terminal: numbers right-aligned, reals with `decimals` places.
+// Aligned text for a terminal: numbers right-aligned, reals with `decimals` places;
+// columns empty in every row are left out (CSV and JSON keep them).
 std::string render_console(const Table& table, int decimals = 4);
 
 // JSON array with one object per row, keys = column names.
