@@ -14,6 +14,7 @@
 #include "io/atomic_file.hpp"
 #include "io/signal.hpp"
 #include "../support/signals.hpp"
+#include "../support/errors.hpp"
 
 using namespace pcasweep;
 using pcasweep::testing::ScratchDir;
@@ -41,14 +42,6 @@ std::string forged_wav(std::uint32_t declared, std::uint32_t held) {
   return "RIFF" + le32(std::uint32_t(body.size())) + body;
 }
 
-std::string error_of(const std::function<void()>& f) {
-  try {
-    f();
-  } catch (const Error& e) {
-    return e.what();
-  }
-  return "";
-}
 
 }  // namespace
 
@@ -170,45 +163,45 @@ TEST_CASE("signal io: bad inputs are refused with the file named") {
   ScratchDir dir("sigio");
   // Empty file.
   write_bytes(dir.file("empty.wav"), "");
-  CHECK(error_of([&] { read_signal(dir.file("empty.wav")); }).find("empty.wav: empty file") != std::string::npos);
+  CHECK(testing::error_message_of([&] { read_signal(dir.file("empty.wav")); }).find("empty.wav: empty file") != std::string::npos);
   write_bytes(dir.file("empty.csv"), "");
-  CHECK(error_of([&] { read_signal(dir.file("empty.csv")); }).find("empty file") != std::string::npos);
+  CHECK(testing::error_message_of([&] { read_signal(dir.file("empty.csv")); }).find("empty file") != std::string::npos);
   // CSV with a text cell: row (line) and column named.
   write_bytes(dir.file("text.csv"), "a,b\n1,2\n3,oops\n5,6\n");
-  const std::string text = error_of([&] { read_signal(dir.file("text.csv")); });
+  const std::string text = testing::error_message_of([&] { read_signal(dir.file("text.csv")); });
   CHECK(text.find("text.csv: line 3, column 2 (b): 'oops' is not a number") != std::string::npos);
   // CSV with a missing cell.
   write_bytes(dir.file("gap.csv"), "a,b\n1,2\n3,\n");
-  CHECK(error_of([&] { read_signal(dir.file("gap.csv")); }).find("line 3, column 2 (b): missing value") !=
+  CHECK(testing::error_message_of([&] { read_signal(dir.file("gap.csv")); }).find("line 3, column 2 (b): missing value") !=
         std::string::npos);
   write_bytes(dir.file("short.csv"), "a,b\n1,2\n3\n");
-  CHECK(error_of([&] { read_signal(dir.file("short.csv")); }).find("line 3, column 2 (b): missing value") !=
+  CHECK(testing::error_message_of([&] { read_signal(dir.file("short.csv")); }).find("line 3, column 2 (b): missing value") !=
         std::string::npos);
   // Unknown column.
   SignalReadOptions cols;
   cols.columns = {"c"};
-  CHECK(error_of([&] { read_signal(dir.file("gap.csv"), cols); }).find("no column 'c'") != std::string::npos);
+  CHECK(testing::error_message_of([&] { read_signal(dir.file("gap.csv"), cols); }).find("no column 'c'") != std::string::npos);
   // WAV whose data chunk claims 2000 bytes but holds 200 (a lying header / truncated file).
   write_bytes(dir.file("lying.wav"), forged_wav(2000, 200));
-  const std::string lying = error_of([&] { read_signal(dir.file("lying.wav")); });
+  const std::string lying = testing::error_message_of([&] { read_signal(dir.file("lying.wav")); });
   CHECK(lying.find("lying.wav: header declares 2000 bytes of samples but only 200 follow") != std::string::npos);
   // The same bytes with an honest header read fine: the forgery is the only fault.
   write_bytes(dir.file("honest.wav"), forged_wav(200, 200));
   CHECK(read_signal(dir.file("honest.wav")).frames() == 100);
   // A WAV cut off inside its header.
   write_bytes(dir.file("cut.wav"), forged_wav(200, 200).substr(0, 30));
-  CHECK(error_of([&] { read_signal(dir.file("cut.wav")); }).find(dir.file("cut.wav") + ": ") == 0);
+  CHECK(testing::error_message_of([&] { read_signal(dir.file("cut.wav")); }).find(dir.file("cut.wav") + ": ") == 0);
   // Not a recording at all.
   write_bytes(dir.file("junk.wav"), "this is not a sound file at all, just words");
-  CHECK(error_of([&] { read_signal(dir.file("junk.wav")); }).find(dir.file("junk.wav") + ": not a recording") == 0);
+  CHECK(testing::error_message_of([&] { read_signal(dir.file("junk.wav")); }).find(dir.file("junk.wav") + ": not a recording") == 0);
   // Raw size not a whole number of frames, and raw without a type.
   write_bytes(dir.file("odd.raw"), "abc");
   SignalReadOptions raw;
   raw.raw_type = "int16";
-  CHECK(error_of([&] { read_signal(dir.file("odd.raw"), raw); }).find("3 bytes is not a whole number of frames") !=
+  CHECK(testing::error_message_of([&] { read_signal(dir.file("odd.raw"), raw); }).find("3 bytes is not a whole number of frames") !=
         std::string::npos);
-  CHECK(error_of([&] { read_signal(dir.file("odd.raw")); }).find("raw samples need --raw int16 or --raw float32") !=
+  CHECK(testing::error_message_of([&] { read_signal(dir.file("odd.raw")); }).find("raw samples need --raw int16 or --raw float32") !=
         std::string::npos);
   // Missing file.
-  CHECK(error_of([&] { read_signal(dir.file("none.wav")); }).find("none.wav: no such file") != std::string::npos);
+  CHECK(testing::error_message_of([&] { read_signal(dir.file("none.wav")); }).find("none.wav: no such file") != std::string::npos);
 }

@@ -7,6 +7,7 @@
 #include "core/error.hpp"
 #include "observe/bands.hpp"
 #include "observe/whole.hpp"
+#include "../support/errors.hpp"
 
 using namespace pcasweep;
 
@@ -38,14 +39,6 @@ void check_round_trip(const Layout& layout, const std::vector<Image>& sources) {
   }
 }
 
-std::string message_of(const std::function<void()>& f) {
-  try {
-    f();
-  } catch (const Error& e) {
-    return e.what();
-  }
-  return "";
-}
 }  // namespace
 
 TEST_CASE("whole layout: one row per image, exact round trip") {
@@ -63,13 +56,13 @@ TEST_CASE("whole layout: one row per image, exact round trip") {
 
 TEST_CASE("whole layout: mismatched images and too few are refused, naming the file") {
   const Image a = make_image(5, 3, 1, 8, 1);
-  std::string m = message_of([&] { WholeLayout({a, make_image(5, 4, 1, 8, 2)}, {"a.png", "tall.png"}); });
+  std::string m = testing::error_message_of([&] { WholeLayout({a, make_image(5, 4, 1, 8, 2)}, {"a.png", "tall.png"}); });
   CHECK(m.find("tall.png") == 0);
-  m = message_of([&] { WholeLayout({a, a, make_image(5, 3, 3, 8, 2)}, {"a.png", "b.png", "rgb.png"}); });
+  m = testing::error_message_of([&] { WholeLayout({a, a, make_image(5, 3, 3, 8, 2)}, {"a.png", "b.png", "rgb.png"}); });
   CHECK(m.find("rgb.png") == 0);
-  m = message_of([&] { WholeLayout({a, make_image(5, 3, 1, 16, 2)}, {"a.png", "deep.png"}); });
+  m = testing::error_message_of([&] { WholeLayout({a, make_image(5, 3, 1, 16, 2)}, {"a.png", "deep.png"}); });
   CHECK(m.find("deep.png") == 0);
-  m = message_of([&] { WholeLayout({a}, {"a.png"}); });
+  m = testing::error_message_of([&] { WholeLayout({a}, {"a.png"}); });
   CHECK(m.find("at least 2 images") != std::string::npos);
 }
 
@@ -88,14 +81,14 @@ TEST_CASE("bands layout: one row per pixel, one column per band, exact round tri
 
 TEST_CASE("bands layout: colour, size and depth mismatches and too few are refused") {
   const Image a = make_image(4, 3, 1, 8, 1);
-  std::string m = message_of([&] { BandLayout({a, make_image(4, 3, 3, 8, 2)}, {"a.png", "rgb.png"}); });
+  std::string m = testing::error_message_of([&] { BandLayout({a, make_image(4, 3, 3, 8, 2)}, {"a.png", "rgb.png"}); });
   CHECK(m.find("rgb.png") == 0);
   CHECK(m.find("single-channel") != std::string::npos);
-  m = message_of([&] { BandLayout({a, make_image(3, 3, 1, 8, 2)}, {"a.png", "narrow.png"}); });
+  m = testing::error_message_of([&] { BandLayout({a, make_image(3, 3, 1, 8, 2)}, {"a.png", "narrow.png"}); });
   CHECK(m.find("narrow.png") == 0);
-  m = message_of([&] { BandLayout({a}, {"a.png"}); });
+  m = testing::error_message_of([&] { BandLayout({a}, {"a.png"}); });
   CHECK(m.find("at least 2") != std::string::npos);
   const Image dot = make_image(1, 1, 1, 8, 1);
-  m = message_of([&] { BandLayout({dot, dot}, {"d1.png", "d2.png"}); });
+  m = testing::error_message_of([&] { BandLayout({dot, dot}, {"d1.png", "d2.png"}); });
   CHECK(m.find("at least 2 pixels") != std::string::npos);
 }

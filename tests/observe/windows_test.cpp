@@ -10,19 +10,10 @@
 #include "core/error.hpp"
 #include "observe/windows.hpp"
 #include "../support/signals.hpp"
+#include "../support/errors.hpp"
 
 using namespace pcasweep;
 
-namespace {
-std::string error_of(const std::function<void()>& f) {
-  try {
-    f();
-  } catch (const Error& e) {
-    return e.what();
-  }
-  return "";
-}
-}  // namespace
 
 TEST_CASE("windows: fold(observe(x)) == x for rectangular and overlapping windows, joint and separate") {
   // 1003 frames: not a multiple of any window below, so every case has a tail shorter than a window.
@@ -113,14 +104,14 @@ TEST_CASE("windows: observations are the windowed frames in (frame, channel) ord
 TEST_CASE("windows: a window longer than the recording, hop 0 or a hop longer than the window are refused") {
   WindowOptions o;
   o.window = 101;
-  const std::string longer = error_of([&] { WindowLayout(100, 1, o, "rec.wav"); });
+  const std::string longer = testing::error_message_of([&] { WindowLayout(100, 1, o, "rec.wav"); });
   CHECK(longer.find("rec.wav: --window 101 is longer than the recording (100 frames)") == 0);
   o.window = 10;
   o.hop = -3;
-  CHECK(error_of([&] { WindowLayout(100, 1, o, "rec.wav"); }).find("--hop must be at least 1") == 0);
+  CHECK(testing::error_message_of([&] { WindowLayout(100, 1, o, "rec.wav"); }).find("--hop must be at least 1") == 0);
   o.hop = 11;
-  CHECK(error_of([&] { WindowLayout(100, 1, o, "rec.wav"); }).find("--hop 11 is longer than --window 10") == 0);
+  CHECK(testing::error_message_of([&] { WindowLayout(100, 1, o, "rec.wav"); }).find("--hop 11 is longer than --window 10") == 0);
   o.window = 0;
   o.hop = 0;
-  CHECK(error_of([&] { WindowLayout(100, 1, o, "rec.wav"); }).find("--window must be at least 1") == 0);
+  CHECK(testing::error_message_of([&] { WindowLayout(100, 1, o, "rec.wav"); }).find("--window must be at least 1") == 0);
 }
