@@ -28,6 +28,17 @@ std::vector<std::string> default_channel_names(int channels) {
   }
 }
 
+Image make_image(int width, int height, int channels, int bit_depth, std::uint16_t fill) {
+  Image image;
+  image.width = width;
+  image.height = height;
+  image.channels = channels;
+  image.bit_depth = bit_depth;
+  image.channel_names = default_channel_names(channels);
+  image.samples.assign(std::size_t(width) * height * channels, fill);
+  return image;
+}
+
 bool has_image_extension(const std::string& path) {
   std::string ext = std::filesystem::path(path).extension().string();
   std::transform(ext.begin(), ext.end(), ext.begin(), [](unsigned char ch) { return std::tolower(ch); });

@@ -55,6 +55,10 @@ void write_png(const std::string& path, const Image& image);
 // {"gray"}, {"gray","alpha"}, {"red","green","blue"}, {"red","green","blue","alpha"}.
 std::vector<std::string> default_channel_names(int channels);
 
+// Returns a width×height image of `channels` channels at `bit_depth` (8 or 16),
+// every sample `fill`, channels named by default_channel_names.
+Image make_image(int width, int height, int channels, int bit_depth, std::uint16_t fill = 0);
+
 // True if the file name ends in an extension read_image understands.
 bool has_image_extension(const std::string& path);
 

@@ -93,13 +93,7 @@ Image component_image(const Basis& b, int j, const PatchOptions& p, int channels
   const bool joint = p.colour == ColourMode::joint;
   const int c_in = joint ? channels : 1;
   const int c_out = c_in >= 3 ? 3 : 1;
-  Image img;
-  img.width = p.patch_width;
-  img.height = p.patch_height;
-  img.channels = c_out;
-  img.bit_depth = 8;
-  img.channel_names = default_channel_names(c_out);
-  img.samples.resize(std::size_t(img.width) * img.height * c_out);
+  Image img = make_image(p.patch_width, p.patch_height, c_out, 8);
   const Eigen::VectorXd v = b.components.col(j);
   const double scale = std::max(v.cwiseAbs().maxCoeff(), 1e-300);
   for (int cell = 0; cell < img.width * img.height; ++cell)

@@ -149,13 +149,7 @@ std::vector<Image> component_images(const Basis& basis, const Layout& layout, in
       for (int x = 0; x < shape.width; ++x)
         for (int c = 0; c < keep; ++c)
           peak = std::max(peak, std::abs(v((Eigen::Index(y) * shape.width + x) * shape.channels + c)));
-    Image im;
-    im.width = shape.width * scale;
-    im.height = shape.height * scale;
-    im.channels = keep;
-    im.bit_depth = 8;
-    im.channel_names = default_channel_names(keep);
-    im.samples.resize(std::size_t(im.width) * im.height * keep);
+    Image im = make_image(shape.width * scale, shape.height * scale, keep, 8);
     for (int y = 0; y < im.height; ++y)
       for (int x = 0; x < im.width; ++x)
         for (int c = 0; c < keep; ++c) {

@@ -28,13 +28,7 @@ std::array<std::uint8_t, 3> viridis_like(double t) {
 }
 
 Image colour_map_image(const std::vector<double>& values, int width, int height, double scale) {
-  Image img;
-  img.width = width;
-  img.height = height;
-  img.channels = 3;
-  img.bit_depth = 8;
-  img.channel_names = default_channel_names(3);
-  img.samples.resize(std::size_t(width) * height * 3);
+  Image img = make_image(width, height, 3, 8);
   for (std::size_t p = 0; p < std::size_t(width) * height; ++p) {
     const auto rgb = viridis_like(scale > 0 ? values[p] / scale : 0.0);
     for (int c = 0; c < 3; ++c) img.samples[p * 3 + c] = rgb[c];

@@ -22,13 +22,7 @@ namespace {
 // A deterministic test image (SplitMix64 noise over gradients and sinusoids, own generator so
 // every machine sees the same samples).
 Image codec_scene(int width, int height, int channels, int bits, std::uint64_t seed) {
-  Image im;
-  im.width = width;
-  im.height = height;
-  im.channels = channels;
-  im.bit_depth = bits;
-  im.channel_names = default_channel_names(channels);
-  im.samples.resize(std::size_t(width) * height * channels);
+  Image im = make_image(width, height, channels, bits);
   std::uint64_t state = seed;
   auto next = [&]() {
     std::uint64_t z = (state += 0x9E3779B97F4A7C15ull);

@@ -14,13 +14,7 @@ using pcasweep::testing::scene_image;
 namespace {
 
 Image flat(int width, int height, int channels, int bits, std::uint16_t value) {
-  Image image;
-  image.width = width;
-  image.height = height;
-  image.channels = channels;
-  image.bit_depth = bits;
-  image.channel_names = default_channel_names(channels);
-  image.samples.assign(std::size_t(width) * height * channels, value);
+  Image image = make_image(width, height, channels, bits, value);
   return image;
 }
 

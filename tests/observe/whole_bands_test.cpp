@@ -12,14 +12,8 @@
 using namespace pcasweep;
 
 namespace {
-Image make_image(int w, int h, int c, int depth, int salt) {
-  Image im;
-  im.width = w;
-  im.height = h;
-  im.channels = c;
-  im.bit_depth = depth;
-  im.channel_names = default_channel_names(c);
-  im.samples.resize(std::size_t(w) * h * c);
+Image patterned_image(int w, int h, int c, int depth, int salt) {
+  Image im = make_image(w, h, c, depth);
   for (std::size_t i = 0; i < im.samples.size(); ++i)
     im.samples[i] = std::uint16_t((i * 37 + std::size_t(salt) * 101) % (depth == 16 ? 65536 : 256));
   return im;
@@ -42,7 +36,7 @@ void check_round_trip(const Layout& layout, const std::vector<Image>& sources) {
 }  // namespace
 
 TEST_CASE("whole layout: one row per image, exact round trip") {
-  const std::vector<Image> s = {make_image(5, 3, 3, 8, 1), make_image(5, 3, 3, 8, 2), make_image(5, 3, 3, 8, 3)};
+  const std::vector<Image> s = {patterned_image(5, 3, 3, 8, 1), patterned_image(5, 3, 3, 8, 2), patterned_image(5, 3, 3, 8, 3)};
   const WholeLayout layout(s, {"a.png", "b.png", "c.png"});
   CHECK(layout.observation_count() == 3);
   CHECK(layout.dimension() == 45);
@@ -55,20 +49,20 @@ TEST_CASE("whole layout: one row per image, exact round trip") {
 }
 
 TEST_CASE("whole layout: mismatched images and too few are refused, naming the file") {
-  const Image a = make_image(5, 3, 1, 8, 1);
-  std::string m = testing::error_message_of([&] { WholeLayout({a, make_image(5, 4, 1, 8, 2)}, {"a.png", "tall.png"}); });
+  const Image a = patterned_image(5, 3, 1, 8, 1);
+  std::string m = testing::error_message_of([&] { WholeLayout({a, patterned_image(5, 4, 1, 8, 2)}, {"a.png", "tall.png"}); });
   CHECK(m.find("tall.png") == 0);
-  m = testing::error_message_of([&] { WholeLayout({a, a, make_image(5, 3, 3, 8, 2)}, {"a.png", "b.png", "rgb.png"}); });
+  m = testing::error_message_of([&] { WholeLayout({a, a, patterned_image(5, 3, 3, 8, 2)}, {"a.png", "b.png", "rgb.png"}); });
   CHECK(m.find("rgb.png") == 0);
-  m = testing::error_message_of([&] { WholeLayout({a, make_image(5, 3, 1, 16, 2)}, {"a.png", "deep.png"}); });
+  m = testing::error_message_of([&] { WholeLayout({a, patterned_image(5, 3, 1, 16, 2)}, {"a.png", "deep.png"}); });
   CHECK(m.find("deep.png") == 0);
   m = testing::error_message_of([&] { WholeLayout({a}, {"a.png"}); });
   CHECK(m.find("at least 2 images") != std::string::npos);
 }
 
 TEST_CASE("bands layout: one row per pixel, one column per band, exact round trip") {
-  const std::vector<Image> s = {make_image(4, 3, 1, 16, 1), make_image(4, 3, 1, 16, 2), make_image(4, 3, 1, 16, 3),
-                                make_image(4, 3, 1, 16, 4)};
+  const std::vector<Image> s = {patterned_image(4, 3, 1, 16, 1), patterned_image(4, 3, 1, 16, 2), patterned_image(4, 3, 1, 16, 3),
+                                patterned_image(4, 3, 1, 16, 4)};
   const BandLayout layout(s, {"b1.png", "b2.png", "b3.png", "b4.png"});
   CHECK(layout.observation_count() == 12);
   CHECK(layout.dimension() == 4);
@@ -80,15 +74,15 @@ TEST_CASE("bands layout: one row per pixel, one column per band, exact round tri
 }
 
 TEST_CASE("bands layout: colour, size and depth mismatches and too few are refused") {
-  const Image a = make_image(4, 3, 1, 8, 1);
-  std::string m = testing::error_message_of([&] { BandLayout({a, make_image(4, 3, 3, 8, 2)}, {"a.png", "rgb.png"}); });
+  const Image a = patterned_image(4, 3, 1, 8, 1);
+  std::string m = testing::error_message_of([&] { BandLayout({a, patterned_image(4, 3, 3, 8, 2)}, {"a.png", "rgb.png"}); });
   CHECK(m.find("rgb.png") == 0);
   CHECK(m.find("single-channel") != std::string::npos);
-  m = testing::error_message_of([&] { BandLayout({a, make_image(3, 3, 1, 8, 2)}, {"a.png", "narrow.png"}); });
+  m = testing::error_message_of([&] { BandLayout({a, patterned_image(3, 3, 1, 8, 2)}, {"a.png", "narrow.png"}); });
   CHECK(m.find("narrow.png") == 0);
   m = testing::error_message_of([&] { BandLayout({a}, {"a.png"}); });
   CHECK(m.find("at least 2") != std::string::npos);
-  const Image dot = make_image(1, 1, 1, 8, 1);
+  const Image dot = patterned_image(1, 1, 1, 8, 1);
   m = testing::error_message_of([&] { BandLayout({dot, dot}, {"d1.png", "d2.png"}); });
   CHECK(m.find("at least 2 pixels") != std::string::npos);
 }

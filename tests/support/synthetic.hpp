@@ -39,13 +39,7 @@ class SplitMix64 {
 // clipped to the full range; channels differ (phase and weights) so colour
 // modes see correlated but not identical channels.
 inline Image scene_image(int width, int height, int channels, int bit_depth, std::uint64_t seed = 7) {
-  Image image;
-  image.width = width;
-  image.height = height;
-  image.channels = channels;
-  image.bit_depth = bit_depth;
-  image.channel_names = default_channel_names(channels);
-  image.samples.resize(std::size_t(width) * height * channels);
+  Image image = make_image(width, height, channels, bit_depth);
   const double top = bit_depth == 16 ? 65535.0 : 255.0;
   SplitMix64 rng(seed);
   for (int y = 0; y < height; ++y)
