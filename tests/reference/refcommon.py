@@ -14,6 +14,15 @@ import zlib
 
 import numpy as np
 
+# Failed checks of the running script, in order; check() appends to it.
+failures = []
+
+
+def check(ok, what):
+    print(("ok   " if ok else "FAIL ") + what)
+    if not ok:
+        failures.append(what)
+
 
 def write_png(path, image):
     """Writes a numpy array as a PNG (zlib + struct, no imaging library).

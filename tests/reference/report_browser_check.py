@@ -28,13 +28,8 @@ import numpy as np
 from skimage import data
 
 PCASWEEP = os.path.abspath(sys.argv[1])
-failures = []
-
-
-def check(ok, what):
-    print(("ok   " if ok else "FAIL ") + what)
-    if not ok:
-        failures.append(what)
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from refcommon import check, failures  # noqa: E402
 
 
 def write_pnm(path, a):

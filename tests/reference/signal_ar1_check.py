@@ -40,13 +40,8 @@ import tempfile
 import numpy as np
 from scipy.linalg import toeplitz
 
-failures = []
-
-
-def check(ok, what):
-    print(("ok   " if ok else "FAIL ") + what)
-    if not ok:
-        failures.append(what)
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from refcommon import check, failures  # noqa: E402
 
 
 def ar1(n, rho, s_e, rng):

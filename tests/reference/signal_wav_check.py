@@ -29,13 +29,8 @@ from scipy.io import wavfile
 # libsndfile adds chunks scipy does not parse (PEAK for float files); scipy skips them with a warning.
 warnings.simplefilter("ignore", wavfile.WavFileWarning)
 
-failures = []
-
-
-def check(ok, what):
-    print(("ok   " if ok else "FAIL ") + what)
-    if not ok:
-        failures.append(what)
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from refcommon import check, failures  # noqa: E402
 
 
 def figures(x, xh):

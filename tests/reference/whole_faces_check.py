@@ -32,13 +32,8 @@ from PIL import Image
 from sklearn.decomposition import PCA
 
 PCASWEEP = sys.argv[1]
-failures = []
-
-
-def check(ok, what):
-    print(("ok   " if ok else "FAIL ") + what)
-    if not ok:
-        failures.append(what)
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from refcommon import check, failures  # noqa: E402
 
 
 def write_png16(path, a):
