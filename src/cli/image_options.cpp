@@ -4,6 +4,16 @@
 
 namespace pcasweep::cli {
 
+void add_input_arguments(CLI::App& sub, std::string& input, std::vector<std::string>& more) {
+  sub.add_option("IMAGE", input,
+                 "Image (PNG, JPEG, BMP, TGA, PNM; 8 or 16 bit) or recording (WAV, FLAC, Ogg, AIFF, CSV, raw; "
+                 "see --window) to analyse")
+      ->required();
+  sub.add_option("MORE", more,
+                 "Further images, for --layout whole (same size, each one observation) or bands (gray, "
+                 "co-registered, one per band)");
+}
+
 void add_image_options(CLI::App& sub, ImageOptionText& text) {
   sub.add_option("--patch", text.patch,
                  "Patch size in pixels, ROWSxCOLUMNS or one number for a square (default 8)");

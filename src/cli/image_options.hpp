@@ -4,6 +4,7 @@
 #include <CLI/CLI.hpp>
 #include <cstdint>
 #include <string>
+#include <vector>
 
 #include "pipeline/image_study.hpp"
 
@@ -21,6 +22,10 @@ struct ImageOptionText {
   int power_iters = -1;        // -1: adaptive
   std::uint64_t seed = 1;
 };
+
+// Declares the positional IMAGE (required: an image or a recording) and MORE
+// (further images for --layout whole or bands), shared by sweep and spectrum.
+void add_input_arguments(CLI::App& sub, std::string& input, std::vector<std::string>& more);
 
 // Declares --patch, --stride, --colour, --drop-alpha, --layout and the solver
 // options (--solver, --rank, --oversample, --power-iters, --seed) on `sub`.

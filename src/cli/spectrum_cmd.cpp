@@ -26,13 +26,7 @@ struct SpectrumArgs {
 
 Action setup_spectrum(CLI::App& sub) {
   auto args = std::make_shared<SpectrumArgs>();
-  sub.add_option("IMAGE", args->input,
-                 "Image (PNG, JPEG, BMP, TGA, PNM; 8 or 16 bit) or recording (WAV, FLAC, Ogg, AIFF, CSV, raw; "
-                 "see --window) to analyse")
-      ->required();
-  sub.add_option("MORE", args->more,
-                 "Further images, for --layout whole (same size, each one observation) or bands (gray, "
-                 "co-registered, one per band)");
+  add_input_arguments(sub, args->input, args->more);
   sub.add_option("--top", args->top,
                  "Print only the first N components (default: all computed; with the randomized solver N is "
                  "also the default --rank)")

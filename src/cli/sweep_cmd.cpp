@@ -30,13 +30,7 @@ struct SweepArgs {
 
 Action setup_sweep(CLI::App& sub) {
   auto args = std::make_shared<SweepArgs>();
-  sub.add_option("IMAGE", args->input,
-                 "Image (PNG, JPEG, BMP, TGA, PNM; 8 or 16 bit) or recording (WAV, FLAC, Ogg, AIFF, CSV, raw; "
-                 "see --window) to analyse")
-      ->required();
-  sub.add_option("MORE", args->more,
-                 "Further images, for --layout whole (same size, each one observation) or bands (gray, "
-                 "co-registered, one per band)");
+  add_input_arguments(sub, args->input, args->more);
   sub.add_option("--out,-o", args->out, "Folder for the outputs (created if missing)")->required();
   sub.add_option("--k", args->ks,
                  "Components to keep, comma-separated, each 1..d (default: 1, 2, 4, ... below d, then d; "
