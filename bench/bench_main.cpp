@@ -13,6 +13,9 @@
 //       CholeskyQR2 against Householder QR on an m×l Gaussian block.
 //   crossover [--repeat R]
 //       exact against randomized (k = 32, default settings) over a grid of shapes.
+//   entropy IMAGE... [--qualities 40,60,75,90] [--methods pca,dct]
+//       whole coded-file sizes, zstd stage against the adaptive range coder
+//       (bench/entropy_bench.cpp, docs/codec.md).
 // Peak RSS is reported by every mode (from /proc/self/status, VmHWM).
 #include <Eigen/Dense>
 #include <algorithm>
@@ -35,6 +38,11 @@
 
 using namespace pcasweep;
 using Clock = std::chrono::steady_clock;
+
+namespace pcasweep::bench {
+// bench/entropy_bench.cpp: zstd against the adaptive range coder, whole-file sizes.
+int mode_entropy(const std::vector<std::string>& images, const std::string& qualities, const std::string& methods);
+}  // namespace pcasweep::bench
 
 namespace {
 
@@ -273,7 +281,7 @@ int mode_crossover(const Args& a) {
 
 int main(int argc, char** argv) {
   if (argc < 2) {
-    std::cerr << "usage: pcasweep-bench solve|gemm|orth|crossover [options] (see bench/bench_main.cpp)\n";
+    std::cerr << "usage: pcasweep-bench solve|gemm|orth|crossover|entropy [options] (see bench/bench_main.cpp)\n";
     return 2;
   }
   try {
@@ -283,6 +291,8 @@ int main(int argc, char** argv) {
     if (mode == "gemm") return mode_gemm(a);
     if (mode == "orth") return mode_orth(a);
     if (mode == "crossover") return mode_crossover(a);
+    if (mode == "entropy")
+      return pcasweep::bench::mode_entropy(a.positional, a.get("qualities", "40,60,75,90"), a.get("methods", "pca,dct"));
     std::cerr << "pcasweep-bench: unknown mode " << mode << "\n";
     return 2;
   } catch (const Error& e) {
