@@ -22,6 +22,7 @@ struct EncodeArgs {
   double target_psnr = 0.0;
   bool dct = false;
   int zstd_level = 19;
+  std::string entropy = "adaptive";
   bool quiet = false;
   bool stats = false;
   ImageOptionText image;
@@ -47,11 +48,16 @@ Action setup_encode(CLI::App& sub) {
                            "matches (the measured PSNR comes out near it, not exactly)");
   q->excludes(t);
   sub.add_flag("--dct", args->dct, "Use the fixed DCT-II basis instead of a learned one (for comparison)");
-  sub.add_option("--zstd-level", args->zstd_level, "zstd level for the entropy stage, 1..22 (default 19)")
+  sub.add_option("--zstd-level", args->zstd_level,
+                 "zstd level for the side information (and the whole body with --entropy zstd), 1..22 (default 19)")
       ->check(CLI::Range(1, 22));
+  sub.add_option("--entropy", args->entropy,
+                 "Entropy stage: adaptive (context-adaptive range coder, the default) or zstd (for comparison; "
+                 "docs/codec.md has the measured sizes)")
+      ->check(CLI::IsMember({"adaptive", "zstd"}));
   sub.add_flag("--quiet,-q", args->quiet, "Print nothing on success");
   sub.add_flag("--stats", args->stats,
-               "Also print the entropy-stage figures: file size with each packing, the side information, and "
+               "Also print the entropy-stage figures: file size with each coder, the side information, and "
                "the order-0 entropy of the quantised coefficients (docs/codec.md)");
   add_image_options(sub, args->image);
   return [args, t, app = &sub]() {
@@ -60,6 +66,8 @@ Action setup_encode(CLI::App& sub) {
     codec.k = args->k;
     codec.quality = args->quality;
     codec.zstd_level = args->zstd_level;
+    codec.entropy = args->entropy == "zstd" ? EntropyStage::zstd : EntropyStage::adaptive;
+    codec.compare_entropy = args->stats;
     if (t->count()) codec.target_psnr = args->target_psnr;
     if (!args->basis.empty() && args->dct) throw usage_error("--basis and --dct are alternatives; give one");
     std::optional<LoadedBasis> loaded;
@@ -98,9 +106,12 @@ Action setup_encode(CLI::App& sub) {
                 << " bits per pixel\n";
     }
     if (args->stats) {
-      std::cout << "packing: varint+zstd file " << result.varint_file_bytes << " bytes, planes+zstd file "
-                << result.planes_file_bytes << " bytes; kept "
-                << (result.packing == Packing::varint ? "varint" : "planes") << "\n"
+      const char* kept = result.coder == EntropyCoder::adaptive      ? "adaptive"
+                         : result.coder == EntropyCoder::varint_zstd ? "varint+zstd"
+                                                                      : "planes+zstd";
+      std::cout << "entropy stage: adaptive file " << result.adaptive_file_bytes << " bytes, varint+zstd file "
+                << result.varint_file_bytes << " bytes, planes+zstd file " << result.planes_file_bytes
+                << " bytes; wrote " << kept << "\n"
                 << "side information before zstd (steps, indices, mean, basis columns): " << result.side_bytes
                 << " bytes\n"
                 << "order-0 entropy of the quantised coefficients (per component): "

@@ -92,6 +92,19 @@ std::string to_hex(const Sha256& digest) {
   return s;
 }
 
+CoefficientGrid coefficient_grid(const CodedImage& c) {
+  Image geometry;
+  geometry.width = int(c.width);
+  geometry.height = int(c.height);
+  geometry.channels = c.channels;
+  const PatchLayout layout(geometry, c.patch, "coded image");
+  CoefficientGrid g;
+  g.patches_across = std::size_t(layout.patches_across());
+  g.patches_down = std::size_t(layout.patches_down());
+  g.planes = c.patch.colour == ColourMode::joint ? 1 : c.channels;
+  return g;
+}
+
 std::string write_container(const CodedImage& c, int zstd_level) {
   const std::size_t m = c.coded();
   const bool has_mean = c.basis_kind != BasisKind::external;
@@ -101,19 +114,27 @@ std::string write_container(const CodedImage& c, int zstd_level) {
       c.coefficients.size() != std::size_t(c.observations) * m) {
     throw usage_error("internal: coded image parts disagree with its header");
   }
-  std::string body;
+  const bool adaptive = c.coder == EntropyCoder::adaptive;
+  if (!adaptive && c.coder != EntropyCoder::varint_zstd && c.coder != EntropyCoder::planes_zstd) {
+    throw usage_error("internal: unknown entropy coder");
+  }
+  std::string body;  // what the zstd frame holds
   put_array(body, c.component_index);
   put_array(body, c.steps);
   if (has_mean) put_array(body, c.mean_fixed);
-  if (has_columns) {
-    put_array(body, c.column_scale);
-    put_array(body, c.column_fixed);
+  if (has_columns) put_array(body, c.column_scale);
+  std::string columns_stream, coefficient_stream;
+  if (adaptive) {
+    if (has_columns) columns_stream = code_columns(c.column_fixed, c.dimension);
+    coefficient_stream = code_coefficients(c.coefficients, m, coefficient_grid(c), CodingOrder::patch_major);
+  } else {
+    if (has_columns) put_array(body, c.column_fixed);
+    body += pack_integers(c.coefficients, c.coder == EntropyCoder::varint_zstd ? Packing::varint : Packing::planes);
   }
-  body += pack_integers(c.coefficients, c.packing);
   const std::string frame = zstd_compress(body, zstd_level);
 
   std::string out;
-  out.reserve(kCodedImageHeaderSize + frame.size() + 4);
+  out.reserve(kCodedImageHeaderSize + frame.size() + columns_stream.size() + coefficient_stream.size() + 4);
   out.append(kCodedImageMagic, 4);
   put<std::uint16_t>(out, kCodedImageVersion);
   put<std::uint8_t>(out, 1);  // layout: patches
@@ -127,7 +148,7 @@ std::string write_container(const CodedImage& c, int zstd_level) {
   put<std::uint16_t>(out, std::uint16_t(c.patch.stride_y));
   put<std::uint16_t>(out, std::uint16_t(c.patch.stride_x));
   put<std::uint8_t>(out, std::uint8_t(c.basis_kind));
-  put<std::uint8_t>(out, std::uint8_t(c.packing));
+  put<std::uint8_t>(out, std::uint8_t(c.coder));
   put<std::uint32_t>(out, c.dimension);
   put<std::uint32_t>(out, c.k);
   put<std::uint32_t>(out, std::uint32_t(m));
@@ -136,7 +157,11 @@ std::string write_container(const CodedImage& c, int zstd_level) {
   out.append(reinterpret_cast<const char*>(c.basis_sha256.data()), 32);
   put<std::uint64_t>(out, body.size());
   put<std::uint64_t>(out, frame.size());
+  put<std::uint64_t>(out, columns_stream.size());
+  put<std::uint64_t>(out, coefficient_stream.size());
   out += frame;
+  out += columns_stream;
+  out += coefficient_stream;
   put<std::uint32_t>(out, crc32_of(out));
   return out;
 }
@@ -173,7 +198,7 @@ CodedImage read_container(std::string_view bytes, const std::string& name) {
   c.patch.stride_y = h.get<std::uint16_t>();
   c.patch.stride_x = h.get<std::uint16_t>();
   const auto kind = h.get<std::uint8_t>();
-  const auto packing = h.get<std::uint8_t>();
+  const auto coder = h.get<std::uint8_t>();
   c.dimension = h.get<std::uint32_t>();
   c.k = h.get<std::uint32_t>();
   const std::uint32_t m = h.get<std::uint32_t>();
@@ -182,6 +207,8 @@ CodedImage read_container(std::string_view bytes, const std::string& name) {
   for (auto& b : c.basis_sha256) b = h.get<std::uint8_t>();
   const auto body_size = h.get<std::uint64_t>();
   const auto frame_size = h.get<std::uint64_t>();
+  const auto columns_size = h.get<std::uint64_t>();
+  const auto coefficients_size = h.get<std::uint64_t>();
 
   // Geometry, against caps, before any allocation.
   if (c.width == 0 || c.height == 0 || c.channels < 1 || c.channels > 4) {
@@ -202,8 +229,9 @@ CodedImage read_container(std::string_view bytes, const std::string& name) {
   }
   if (kind > 2) throw data_error(name + ": unknown basis kind " + std::to_string(kind));
   c.basis_kind = BasisKind(kind);
-  if (packing != 1 && packing != 2) throw data_error(name + ": unknown coefficient packing " + std::to_string(packing));
-  c.packing = Packing(packing);
+  if (coder < 1 || coder > 3) throw data_error(name + ": unknown entropy coder " + std::to_string(coder));
+  c.coder = EntropyCoder(coder);
+  const bool adaptive = c.coder == EntropyCoder::adaptive;
   const std::uint64_t d = std::uint64_t(p.patch_height) * p.patch_width * per_observation_channels(c);
   if (c.dimension != d || d > kMaxDimension) {
     throw data_error(name + ": header declares d = " + std::to_string(c.dimension) + " but the patch geometry gives " +
@@ -229,16 +257,41 @@ CodedImage read_container(std::string_view bytes, const std::string& name) {
   const std::uint64_t count = std::uint64_t(c.observations) * m;
   const bool has_mean = c.basis_kind != BasisKind::external;
   const bool has_columns = c.basis_kind == BasisKind::embedded;
-  const std::uint64_t fixed_part = m * 8 + (has_mean ? d * 2 : 0) + (has_columns ? m * 4 + d * m * 2 : 0);
-  const std::uint64_t packed_max = c.packing == Packing::varint ? count * 5 : 1 + count * 4;
-  const std::uint64_t packed_min = c.packing == Packing::varint ? count : 1 + count;
-  if (body_size < fixed_part + packed_min || body_size > fixed_part + packed_max) {
-    throw data_error(name + ": header declares a body of " + std::to_string(body_size) + " bytes, impossible for " +
-                     std::to_string(count) + " coefficients");
+  const std::uint64_t side_part = m * 8 + (has_mean ? d * 2 : 0) + (has_columns ? m * 4 : 0);
+  const std::uint64_t column_part = has_columns ? d * m * 2 : 0;
+  if (adaptive) {
+    if (body_size != side_part) {
+      throw data_error(name + ": header declares a body of " + std::to_string(body_size) + " bytes, the side information of " +
+                       std::to_string(m) + " components takes " + std::to_string(side_part));
+    }
+  } else {
+    const bool varint = c.coder == EntropyCoder::varint_zstd;
+    const std::uint64_t packed_max = varint ? count * 5 : 1 + count * 4;
+    const std::uint64_t packed_min = varint ? count : 1 + count;
+    if (body_size < side_part + column_part + packed_min || body_size > side_part + column_part + packed_max) {
+      throw data_error(name + ": header declares a body of " + std::to_string(body_size) + " bytes, impossible for " +
+                       std::to_string(count) + " coefficients");
+    }
   }
-  if (frame_size != bytes.size() - kCodedImageHeaderSize - 4) {
-    throw data_error(name + ": header declares " + std::to_string(frame_size) + " compressed bytes, the file holds " +
-                     std::to_string(bytes.size() - kCodedImageHeaderSize - 4));
+  const std::uint64_t held = bytes.size() - kCodedImageHeaderSize - 4;
+  if (frame_size > held || columns_size > held || coefficients_size > held ||
+      frame_size + columns_size + coefficients_size != held) {
+    throw data_error(name + ": header declares parts of " + std::to_string(frame_size) + " + " + std::to_string(columns_size) +
+                     " + " + std::to_string(coefficients_size) + " bytes, the file holds " + std::to_string(held));
+  }
+  if (adaptive) {
+    // A range-coded stream of R bytes holds at most ~5678·R decisions (adaptive_coder.hpp):
+    // refuse counts it cannot hold before allocating for them.
+    if (coefficients_size < 5 || count > kMaxBinsPerByte * coefficients_size) {
+      throw data_error(name + ": range-coded coefficients of " + std::to_string(coefficients_size) +
+                       " bytes cannot hold " + std::to_string(count) + " values");
+    }
+    if (has_columns ? (columns_size < 5 || d * m > kMaxBinsPerByte * columns_size) : columns_size != 0) {
+      throw data_error(name + ": range-coded basis columns of " + std::to_string(columns_size) +
+                       " bytes do not fit " + std::to_string(has_columns ? d * m : 0) + " entries");
+    }
+  } else if (columns_size != 0 || coefficients_size != 0) {
+    throw data_error(name + ": zstd-coded file declares range-coded parts");
   }
   const std::string body = zstd_decompress(bytes.substr(kCodedImageHeaderSize, frame_size), std::size_t(body_size), name);
 
@@ -246,10 +299,8 @@ CodedImage read_container(std::string_view bytes, const std::string& name) {
   b.get_array(c.component_index, m);
   b.get_array(c.steps, m);
   if (has_mean) b.get_array(c.mean_fixed, std::size_t(d));
-  if (has_columns) {
-    b.get_array(c.column_scale, m);
-    b.get_array(c.column_fixed, std::size_t(d * m));
-  }
+  if (has_columns) b.get_array(c.column_scale, m);
+  if (has_columns && !adaptive) b.get_array(c.column_fixed, std::size_t(d * m));
   std::vector<bool> seen(std::size_t(d), false);
   for (std::uint32_t i : c.component_index) {
     if (i >= d || seen[i]) throw data_error(name + ": component list is invalid (index " + std::to_string(i) + ")");
@@ -259,7 +310,15 @@ CodedImage read_container(std::string_view bytes, const std::string& name) {
     if (!(s > 0.0f) || !std::isfinite(s)) throw data_error(name + ": a quantiser step is not a positive number");
   for (float s : c.column_scale)
     if (!(s > 0.0f) || !std::isfinite(s)) throw data_error(name + ": a basis column scale is not a positive number");
-  c.coefficients = unpack_integers(b.rest(), std::size_t(count), c.packing, name);
+  if (adaptive) {
+    const std::string_view streams = bytes.substr(kCodedImageHeaderSize + frame_size);
+    if (has_columns) c.column_fixed = decode_columns(streams.substr(0, columns_size), std::size_t(d), m, name);
+    c.coefficients = decode_coefficients(streams.substr(columns_size, coefficients_size), m, coefficient_grid(c),
+                                         CodingOrder::patch_major, name);
+  } else {
+    c.coefficients = unpack_integers(b.rest(), std::size_t(count),
+                                     c.coder == EntropyCoder::varint_zstd ? Packing::varint : Packing::planes, name);
+  }
   return c;
 }
 

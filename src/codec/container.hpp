@@ -1,11 +1,13 @@
 // pcasweep/codec/container.hpp — the coded-image file (".pcsc", magic "PSCI").
 //
 // Contract: write_container() lays a CodedImage out byte by byte as
-// docs/format.md describes (little-endian, fixed 100-byte header, one zstd
-// body, CRC-32 trailer); read_container() is its inverse and treats the bytes
-// as untrusted: it checks the length and CRC-32 first, then every header
-// field against caps before anything is allocated, then the body's exact
-// length, and throws Error(data) "<name>: <what is wrong>" on any defect.
+// docs/format.md describes (little-endian, fixed 116-byte header, a zstd frame
+// with the side information, then — entropy coder 3 — the range-coded basis
+// columns and coefficients, CRC-32 trailer); read_container() is its inverse
+// and treats the bytes as untrusted: it checks the length and CRC-32 first,
+// then every header field against caps before anything is allocated, then
+// every part's exact length, and throws Error(data) "<name>: <what is wrong>"
+// on any defect.
 // The container knows nothing about how the numbers were chosen.
 #pragma once
 
@@ -15,14 +17,15 @@
 #include <string_view>
 #include <vector>
 
+#include "codec/adaptive_coder.hpp"
 #include "codec/entropy.hpp"
 #include "observe/patches.hpp"
 
 namespace pcasweep {
 
 inline constexpr char kCodedImageMagic[4] = {'P', 'S', 'C', 'I'};
-inline constexpr std::uint16_t kCodedImageVersion = 1;
-inline constexpr std::size_t kCodedImageHeaderSize = 100;
+inline constexpr std::uint16_t kCodedImageVersion = 2;
+inline constexpr std::size_t kCodedImageHeaderSize = 116;
 
 // Where the decoder finds the basis.
 enum class BasisKind : std::uint8_t {
@@ -38,7 +41,7 @@ struct CodedImage {
   std::uint8_t channels = 0, bit_depth = 8;
   PatchOptions patch;                     // strides normalised (never 0)
   BasisKind basis_kind = BasisKind::embedded;
-  Packing packing = Packing::varint;
+  EntropyCoder coder = EntropyCoder::adaptive;
   std::uint32_t dimension = 0;            // d
   std::uint32_t k = 0;                    // components asked for
   std::uint32_t observations = 0;         // N
@@ -54,12 +57,16 @@ struct CodedImage {
   std::size_t coded() const { return component_index.size(); }
 };
 
-// Returns the file bytes. zstd_level: 1..22. Throws Error(usage) if the
-// vectors' sizes disagree with the header fields.
+// Returns the file bytes, body coded with image.coder. zstd_level: 1..22 (the side
+// information's frame, and the whole body for the zstd coders). Throws Error(usage)
+// if the vectors' sizes disagree with the header fields.
 std::string write_container(const CodedImage& image, int zstd_level);
 
 // Parses and validates `bytes` (untrusted). `name` is used in messages.
 CodedImage read_container(std::string_view bytes, const std::string& name);
+
+// Where each coded image's observations sit on the patch grid (contexts of the range coder).
+CoefficientGrid coefficient_grid(const CodedImage& image);
 
 // CRC-32 (ISO-HDLC, as zlib and PNG compute it) of `bytes`.
 std::uint32_t crc32_of(std::string_view bytes);

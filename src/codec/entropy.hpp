@@ -1,6 +1,13 @@
-// pcasweep/codec/entropy.hpp — lossless stage for the quantised coefficients.
+// pcasweep/codec/entropy.hpp — the zstd entropy stage (coders 1 and 2 of the
+// coded-image file) and the choice of coder.
 //
-// Contract: the integers of each coded component form one stream, streams
+// The shipped encoder uses coder 3, the context-adaptive range coder of
+// codec/adaptive_coder.hpp (≥ 10 % smaller files on the bundled samples,
+// docs/codec.md); zstd stays readable and writable for comparison
+// (`encode --entropy zstd`, `pcasweep-bench entropy`), and always compresses
+// the small side information (indices, steps, mean, column scales).
+//
+// Contract (zstd coders): the integers of each coded component form one stream, streams
 // are concatenated component after component (component-major), mapped to
 // unsigned by zig-zag (0, −1, 1, −2, … → 0, 1, 2, 3, …) and laid out in one of
 // two packings, then the whole body is compressed by zstd:
@@ -8,9 +15,9 @@
 //   planes  the zig-zag values as 32-bit words split into byte planes: all
 //           low bytes, then all second bytes, …; `planes` (1..4) says how
 //           many planes are stored (the rest are all zero)
-// The encoder tries both and keeps the smaller file (docs/codec.md has the
-// figures). Every unpacking checks its bounds and throws Error(data) naming
-// the file on malformed input.
+// With zstd the encoder tries both packings and keeps the smaller file. Every
+// unpacking checks its bounds and throws Error(data) naming the file on
+// malformed input.
 #pragma once
 
 #include <cstdint>
@@ -21,6 +28,16 @@
 namespace pcasweep {
 
 enum class Packing : std::uint8_t { varint = 1, planes = 2 };
+
+// Byte 27 of the coded-image header: how the body is coded (docs/format.md).
+enum class EntropyCoder : std::uint8_t {
+  varint_zstd = 1,  // side information and varint-packed coefficients in one zstd frame
+  planes_zstd = 2,  // the same with byte-plane packing
+  adaptive = 3,     // side information in a zstd frame; basis columns and coefficients range-coded
+};
+
+// Which stage the encoder writes: the adaptive coder, or zstd with whichever packing is smaller.
+enum class EntropyStage { adaptive, zstd };
 
 inline std::uint32_t zigzag(std::int32_t v) {
   return (std::uint32_t(v) << 1) ^ std::uint32_t(-(std::int32_t)(std::uint32_t(v) >> 31));

@@ -152,18 +152,28 @@ EncodeResult encode_image(const Image& image, const PatchOptions& patch, const B
   result.coded = int(m);
   result.coefficient_entropy_bits = order0_entropy_bits(c.coefficients, m);
   result.side_bytes = m * 8 + c.mean_fixed.size() * 2 + c.column_scale.size() * 4 + c.column_fixed.size() * 2;
-  c.packing = Packing::varint;
-  std::string varint = write_container(c, settings.zstd_level);
-  c.packing = Packing::planes;
-  std::string planes = write_container(c, settings.zstd_level);
-  result.varint_file_bytes = varint.size();
-  result.planes_file_bytes = planes.size();
-  if (planes.size() < varint.size()) {
-    result.packing = Packing::planes;
-    result.bytes = std::move(planes);
-  } else {
-    result.packing = Packing::varint;
-    result.bytes = std::move(varint);
+  const bool zstd = settings.entropy == EntropyStage::zstd;
+  if (!zstd || settings.compare_entropy) {
+    c.coder = EntropyCoder::adaptive;
+    std::string adaptive = write_container(c, settings.zstd_level);
+    result.adaptive_file_bytes = adaptive.size();
+    if (!zstd) {
+      result.coder = EntropyCoder::adaptive;
+      result.bytes = std::move(adaptive);
+    }
+  }
+  if (zstd || settings.compare_entropy) {
+    c.coder = EntropyCoder::varint_zstd;
+    std::string varint = write_container(c, settings.zstd_level);
+    c.coder = EntropyCoder::planes_zstd;
+    std::string planes = write_container(c, settings.zstd_level);
+    result.varint_file_bytes = varint.size();
+    result.planes_file_bytes = planes.size();
+    if (zstd) {
+      const bool use_planes = planes.size() < varint.size();
+      result.coder = use_planes ? EntropyCoder::planes_zstd : EntropyCoder::varint_zstd;
+      result.bytes = std::move(use_planes ? planes : varint);
+    }
   }
   return result;
 }

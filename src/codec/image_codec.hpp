@@ -6,7 +6,8 @@
 // numbers), measures each component's coefficient power λ_j = Σ c²/(N−1),
 // picks the water level θ from --quality or --target-psnr, quantises the
 // components with λ_j > θ among the first k, and writes the container with
-// whichever packing (varint or planes) is smaller. decode_coded_image()
+// the adaptive range coder (or, on request, zstd with whichever packing is
+// smaller). decode_coded_image()
 // rebuilds X̂ = C·Vᵀ + 1·μᵀ, folds it and rounds/clips to the bit depth: the
 // only way a coded image becomes pixels, used by both `decode` and `sweep`.
 #pragma once
@@ -27,7 +28,9 @@ struct CodecSettings {
   int k = 0;                          // components to consider, 1..d (1..r for a basis of rank r)
   int quality = 90;                   // 1..100, used when target_psnr is empty
   std::optional<double> target_psnr;  // dB; solves for θ instead of --quality
-  int zstd_level = 19;
+  int zstd_level = 19;                // side information (and the whole body with zstd)
+  EntropyStage entropy = EntropyStage::adaptive;
+  bool compare_entropy = false;       // also write the other coders and record their file sizes
 };
 
 // Which basis the encoder uses.
@@ -44,8 +47,10 @@ struct EncodeResult {
   double predicted_mse = 0.0;     // model MSE per sample (quantize.hpp)
   double gaussian_rate_bits = 0;  // Σ ½log2(λ_j/θ) per observation over the first k (model)
   int coded = 0;                  // m, components that got bits
-  Packing packing = Packing::varint;
-  std::size_t varint_file_bytes = 0, planes_file_bytes = 0;  // both tried
+  EntropyCoder coder = EntropyCoder::adaptive;  // the coder of `bytes`
+  // File sizes with each coder: the one written always; all three with compare_entropy;
+  // both zstd packings whenever zstd was asked for (the smaller is kept). 0 = not tried.
+  std::size_t adaptive_file_bytes = 0, varint_file_bytes = 0, planes_file_bytes = 0;
   double coefficient_entropy_bits = 0.0;  // order-0 entropy of the quantised streams
   std::size_t side_bytes = 0;     // steps, indices, mean, columns before compression
 };

@@ -281,7 +281,7 @@ RdReport write_rate_distortion(const ImageAnalysis& a, const RdSettings& setting
                  {"psnr_db_at_bits_per_pixel", at},
                  {"note", "PSNR at a rate is linearly interpolated between the two measured points around it; "
                           "pca and dct are encoded and decoded by pcasweep (own basis at 16-bit precision vs the "
-                          "fixed DCT-II basis, same quantiser and zstd stage), jpeg is stb_image_write's baseline "
+                          "fixed DCT-II basis, same quantiser and entropy coder), jpeg is stb_image_write's baseline "
                           "JPEG decoded by stb_image, gaussian_bound is R(D) of a Gaussian source with the "
                           "eigenvalues as variances (no side information)"},
                  {"points", to_json(rd_table(report.points))}};
@@ -300,7 +300,7 @@ RdReport write_rate_distortion(const ImageAnalysis& a, const RdSettings& setting
   chart.y_label = "PSNR (dB), measured on the decoded image";
   const struct { const char* method; const char* label; MarkerShape marker; const char* dash; } curves[] = {
       {"pca", "PCA, own basis (pcasweep codec)", MarkerShape::circle, ""},
-      {"dct", "DCT-II 8x8-style basis, same quantiser and zstd", MarkerShape::square, ""},
+      {"dct", "DCT-II 8x8-style basis, same quantiser and coder", MarkerShape::square, ""},
       {"jpeg", "JPEG (stb_image_write)", MarkerShape::triangle, ""},
       {"gaussian_bound", "Gaussian R(D) from the eigenvalues (reference; real patches can beat it)",
        MarkerShape::none, "6 4"}};

@@ -1,4 +1,4 @@
-#include "adaptive_coder.hpp"
+#include "codec/adaptive_coder.hpp"
 
 #include <algorithm>
 #include <array>
@@ -6,7 +6,7 @@
 
 #include "core/error.hpp"
 
-namespace pcasweep::bench {
+namespace pcasweep {
 
 namespace {
 
@@ -262,4 +262,4 @@ std::vector<std::int16_t> decode_columns(std::string_view bytes, std::size_t d, 
   return v;
 }
 
-}  // namespace pcasweep::bench
+}  // namespace pcasweep

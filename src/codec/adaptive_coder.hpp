@@ -1,20 +1,27 @@
-// pcasweep/bench/adaptive_coder.hpp — a context-adaptive binary range coder for
-// the quantised coefficients, kept as a measurement mode (docs/codec.md:
-// "A dedicated adaptive coder").
+// pcasweep/codec/adaptive_coder.hpp — the entropy stage: a context-adaptive
+// binary range coder for the quantised coefficients and the 12-bit basis
+// columns (docs/codec.md, "Entropy stage", has the measurements that chose it
+// over zstd; docs/format.md the streams' place in the file).
 //
 // Contract: code_coefficients() turns the N·m quantised coefficients of a
 // coded image (component-major, as CodedImage::coefficients holds them) into
 // one range-coded byte stream; decode_coefficients() is its exact inverse and
-// treats the bytes as untrusted (every loop bounded, magnitudes capped at
-// 2^30, reads past the end counted and refused, never undefined behaviour).
+// treats the bytes as untrusted: every loop is bounded, values are checked to
+// fit int32, a stream must be consumed exactly and end in the encoder's final
+// state, reads past its end are refused; a damaged stream gives Error(data) or
+// wrong but bounded integers (caught by the file's CRC-32), never undefined
+// behaviour. The file format always uses CodingOrder::patch_major; the other
+// order exists for the measurement in bench/entropy_bench.cpp.
 //
 // Binarisation of each integer q:
 //   zero flag          [q == 0]
 //   sign               [q < 0]                    (only when q != 0)
 //   exponent e         bit length of |q| minus 1, in unary (e ones, then a zero)
 //   mantissa           the e bits of |q| below its top bit, high bit first
+// (any int32; |q| ≤ 2^31 needs e ≤ 31, which ends the unary code without its zero).
 // Every bin has its own adaptive probability (two estimators with fast and
-// slow adaptation, averaged; faster warm-up while few bits have been seen). Contexts (all from coefficients the decoder already has):
+// slow adaptation, averaged; faster warm-up while few bits have been seen).
+// Contexts (all from coefficients the decoder already has):
 //   activity  a = 2|L| + 2|U| + |P1| + |P2| (+ 2|C| in channels mode), where
 //             L / U are the same component of the patch to the left / above,
 //             P1 / P2 the two previous components of the same patch, C the same
@@ -31,7 +38,13 @@
 // contexts are the same in both, only the adaptation order differs.
 //
 // Range coder: 32-bit range, 64-bit low with carry propagation through a
-// cached byte (the classic carry-less-output scheme), 16-bit probabilities.
+// cached byte (the classic carry-less-output scheme), 16-bit probabilities
+// clamped to [64, 65472]/65536. Stream = 1 zero byte, then the bytes of low;
+// the encoder flushes 5 bytes, so a decoder that has read a valid stream
+// stands exactly at its end with code 0.
+// Every bin costs at least −log2(65472/65536) = 0.00141 bits, so a stream of
+// R bytes holds at most 5678·R bins; readers refuse declared counts above
+// kMaxBinsPerByte·R before allocating.
 #pragma once
 
 #include <cstdint>
@@ -39,7 +52,7 @@
 #include <string_view>
 #include <vector>
 
-namespace pcasweep::bench {
+namespace pcasweep {
 
 // Where each observation sits: observation i is patch (i mod (nx·ny)) of
 // channel plane i / (nx·ny); patches are row-major, nx across.
@@ -52,7 +65,9 @@ struct CoefficientGrid {
 
 enum class CodingOrder { component_major, patch_major };
 
-// q: N·m integers, component-major (q[j·N + i]), |q| < 2^30; N = grid.observations().
+inline constexpr std::uint64_t kMaxBinsPerByte = 6000;
+
+// q: N·m integers, component-major (q[j·N + i]), any int32 values; N = grid.observations().
 // Returns the coded bytes.
 std::string code_coefficients(const std::vector<std::int32_t>& q, std::size_t m, const CoefficientGrid& grid,
                               CodingOrder order);
@@ -62,10 +77,16 @@ std::string code_coefficients(const std::vector<std::int32_t>& q, std::size_t m,
 std::vector<std::int32_t> decode_coefficients(std::string_view bytes, std::size_t m, const CoefficientGrid& grid,
                                               CodingOrder order, const std::string& name);
 
-// The 12-bit basis entries (column after column, d each, |v| ≤ 2047) with the same
-// binarisation; contexts: magnitude of the previous entry of the column and of the
-// same entry of the previous column, and the column's rank band.
+// The basis entries (column after column, d each; 12-bit values in int16) with the same
+// binarisation; contexts: magnitudes of the two previous entries of the column and of
+// the same entry of the previous column (activity), the running mean |v| of the column
+// (scale), the column's rank (band); sign: signs of the previous entry and of the
+// previous column's entry.
+// v: d·m entries. Returns the coded bytes.
 std::string code_columns(const std::vector<std::int16_t>& v, std::size_t d);
+
+// bytes: a stream from code_columns() (untrusted). Returns the d·m entries; Error(data)
+// naming `name` on a malformed stream or a value outside int16.
 std::vector<std::int16_t> decode_columns(std::string_view bytes, std::size_t d, std::size_t m, const std::string& name);
 
-}  // namespace pcasweep::bench
+}  // namespace pcasweep
