@@ -112,7 +112,7 @@ Action setup_encode(CLI::App& sub) {
       std::cout << "entropy stage: adaptive file " << result.adaptive_file_bytes << " bytes, varint+zstd file "
                 << result.varint_file_bytes << " bytes, planes+zstd file " << result.planes_file_bytes
                 << " bytes; wrote " << kept << "\n"
-                << "side information before zstd (steps, indices, mean, basis columns): " << result.side_bytes
+                << "side information uncompressed (steps, indices, mean, basis columns): " << result.side_bytes
                 << " bytes\n"
                 << "order-0 entropy of the quantised coefficients (per component): "
                 << result.coefficient_entropy_bits / 8.0 << " bytes\n"
