@@ -163,11 +163,11 @@ std::int32_t code_value(RC& rc, Models& M, const Context& c, std::int32_t v, con
     BitModel& m = p == e - 1 ? M.mant_hi[e * kScales + c.scale] : M.mant[e * kMaxExp + p];
     mag = (mag << 1) | std::uint32_t(rc.bit(m, int((a >> p) & 1)));
   }
-  if (!negative) {
-    if (mag > 0x7FFFFFFFu) throw data_error(name + ": range-coded data is corrupt (value out of range)");
-    return std::int32_t(mag);
+  // An encoder never writes |v| above 2^31 (negative) or 2^31 − 1 (positive); a damaged stream can.
+  if (mag > (negative ? 0x80000000u : 0x7FFFFFFFu)) {
+    throw data_error(name + ": range-coded data is corrupt (value out of range)");
   }
-  return std::int32_t(std::uint32_t(0) - mag);  // mag ≤ 2^31: two's complement, defined since C++20
+  return negative ? std::int32_t(std::uint32_t(0) - mag) : std::int32_t(mag);  // modular, defined since C++20
 }
 
 int sign3(std::int32_t v) { return v > 0 ? 1 : v < 0 ? 2 : 0; }

@@ -31,7 +31,7 @@
 //             decoder does not know);
 //   band      the component's rank: 0, 1–3, 4–15, 16–63, 64+.
 // Zero flag: (band, scale, activity). Sign: (band, signs of L and U).
-// Exponent bin t: (scale, activity, min(t, 15)). First mantissa bit: (e, scale);
+// Exponent bin t: (scale, activity / 2, min(t, 15)). First mantissa bit: (e, scale);
 // the others: (e, bit position).
 // Order: component-major (all N coefficients of one component, then the next)
 // or patch-major (all m coefficients of one patch, then the next); the
