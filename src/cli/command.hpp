@@ -38,7 +38,7 @@ inline const Command kCommands[] = {
      setup_batch},
     {"demo", "Run the sweep on the bundled Tern Point samples", setup_demo},
     {"fit", "Learn a basis from one or more images and save it for encode/decode", setup_fit},
-    {"encode", "Encode an image into a compact file: k components, water-filled quantiser, zstd", setup_encode},
+    {"encode", "Encode an image into a compact file: k components, water-filled quantiser, adaptive range coder", setup_encode},
     {"decode", "Decode a file written by encode (or sweep) back into a PNG", setup_decode},
     {"compare", "Compare an image with another: MSE, PSNR and SSIM per channel (optional SSIM map)",
      setup_compare},
