@@ -85,6 +85,222 @@ Eigen::MatrixXd orthonormalize_cholesky_qr2(Eigen::MatrixXd& M, bool* fell_back)
   return (r2 * r1).triangularView<Eigen::Upper>();
 }
 
+namespace {
+
+// The variance the captured subspace misses and what is known of its rounding:
+// ‖A_c‖²_F − ‖P·A_c‖²_F where `captured` = ‖P·A_c‖²_F. Both terms carry
+// relative rounding of order γ_n = n·u/(1 − n·u) (Higham, Accuracy and
+// Stability of Numerical Algorithms, §3.1), n = N + d, so a difference below
+// γ_n·‖A_c‖²_F is noise: it is clamped to that floor.
+void set_residual(Basis& basis, double frobenius2, double captured, Eigen::Index n, Eigen::Index d) {
+  const double denom = double(n - 1);
+  const double u = std::numeric_limits<double>::epsilon() / 2.0;
+  const double nu = double(n + d) * u;
+  const double floor = nu / (1.0 - nu) * frobenius2;
+  basis.residual_floor = floor / denom;
+  basis.subspace_residual = std::max(frobenius2 - captured, floor) / denom;
+}
+
+// Distance of the rank-k error from optimal, from the rank-k error² E_m of
+// successive estimates. E_m falls at least geometrically (HMT §10.4 for the
+// power scheme; faster for block Krylov); with steps Δ_m = E_{m−1} − E_m and
+// ratio ρ = Δ_m/Δ_{m−1} < 1, the remaining fall is about Δ_m·ρ/(1 − ρ)
+// (Aitken's extrapolation; an overestimate when convergence is faster than
+// geometric). Returns √(E/(E − remaining)) − 1, 0 when the last step is at
+// round-off, NaN with fewer than 3 estimates or when the steps do not shrink.
+double extrapolated_gap(const std::vector<double>& errors, double frobenius2) {
+  if (errors.size() < 3) return std::numeric_limits<double>::quiet_NaN();
+  const std::size_t m = errors.size() - 1;
+  const double step = errors[m - 1] - errors[m], before = errors[m - 2] - errors[m - 1];
+  const double current = errors[m];
+  if (step <= 1e-15 * frobenius2 || current <= 0.0) return 0.0;
+  if (before > 0.0 && step < before) {
+    const double rho = step / before;
+    const double remaining = step * rho / (1.0 - rho);
+    if (remaining < current) return std::sqrt(current / (current - remaining)) - 1.0;
+  }
+  return std::numeric_limits<double>::quiet_NaN();
+}
+
+// Fixed q (HMT Algorithm 4.4): 2q + 2 passes alternating Y = A_c·W and
+// Z = A_cᵀ·Q, each orthonormalised; the last factor's small SVD gives σ and
+// the right singular vectors. Also used, with q = 0, when the sample is as
+// wide as min(N, d): two passes are then exact.
+void subspace_iteration(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, int power_iterations,
+                        std::uint64_t seed, double frobenius2, Basis& basis) {
+  const int total_passes = 2 * power_iterations + 2;
+  Eigen::MatrixXd q = op.apply(gaussian_matrix(op.cols(), l, seed));
+  orthonormalize(q);
+  Eigen::MatrixXd w, w_used;
+  int passes = 1;
+  bool last_on_right = false;
+  Eigen::BDCSVD<Eigen::MatrixXd> svd;
+  Eigen::VectorXd sigma2, previous_sigma2;
+  std::vector<double> errors;
+  double change = std::numeric_limits<double>::quiet_NaN();
+  while (passes < total_passes) {
+    Eigen::MatrixXd r;
+    if (!last_on_right) {
+      w = op.apply_transpose(q);  // Z = A_cᵀ·Q = W·R: σ(R) = σ(QᵀA_c)
+      r = orthonormalize(w);
+    } else {
+      q = op.apply(w);  // Y = A_c·W = Q·R: σ(R) = σ(A_c·W)
+      r = orthonormalize(q);
+      w_used = w;
+    }
+    last_on_right = !last_on_right;
+    ++passes;
+    svd.compute(r, Eigen::ComputeFullU | Eigen::ComputeFullV);
+    previous_sigma2 = sigma2;
+    sigma2 = svd.singularValues().array().square();
+    errors.push_back(std::max(0.0, frobenius2 - sigma2.head(k).sum()));
+    if (previous_sigma2.size() == sigma2.size())
+      change = ((sigma2.head(k) - previous_sigma2.head(k)).array().abs() / sigma2.head(k).array().max(1e-300)).maxCoeff();
+  }
+  Eigen::MatrixXd right = last_on_right ? Eigen::MatrixXd(w * svd.matrixU().leftCols(k))
+                                        : Eigen::MatrixXd(w_used * svd.matrixV().leftCols(k));
+  apply_sign_convention(right);
+  basis.components = std::move(right);
+  basis.eigenvalues = sigma2.head(k) / double(op.rows() - 1);
+  basis.passes = passes;
+  basis.converged = true;
+  basis.last_relative_change = change;
+  set_residual(basis, frobenius2, sigma2.sum(), op.rows(), op.cols());
+  const bool complete = l == std::min(op.rows(), op.cols());
+  basis.optimality_gap_estimate = complete ? 0.0 : extrapolated_gap(errors, frobenius2);
+}
+
+// Adaptive default: randomized block Krylov iteration (Musco & Musco, "Randomized
+// block Krylov methods for stronger and faster approximate singular value
+// decomposition", NeurIPS 2015) on the variable side. Blocks W_0 = orth(Ω),
+// W_{b+1} = orth(A_cᵀ·A_c·W_b minus its part in span(W_0..W_b)) (projected out
+// twice, "twice is enough"), so K = [W_0 … W_b] (d×m) is orthonormal and the
+// products Y_b = A_c·W_b are all reused: after each block the Rayleigh–Ritz
+// values of A_c on span(K) are the eigenvalues of the Gram matrix G = YᵀY
+// (m×m, m = Σ block widths). Two passes per block, and convergence governed by
+// the square root of the spectral gap instead of the gap itself: on the slowly
+// decaying spectra measured in docs/performance.md this needs about half the
+// passes of the power scheme for far better accuracy.
+void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, const RandomizedSettings& settings,
+                  double frobenius2, Basis& basis) {
+  const Eigen::Index n = op.rows(), d = op.cols();
+  std::vector<Eigen::MatrixXd> ws, ys;  // K's blocks (d×l_b) and Y_b = A_c·W_b (N×l_b)
+  Eigen::MatrixXd gram;                 // m×m, Y's Gram matrix
+  Eigen::MatrixXd w = gaussian_matrix(d, l, settings.seed);
+  orthonormalize(w);
+  int passes = 0;
+  Eigen::VectorXd theta, previous;  // leading k Ritz values (σ²), this block and the last
+  std::vector<double> errors, changes;
+  bool converged = false;
+  const double u = std::numeric_limits<double>::epsilon() / 2.0;
+  const double captured_floor = double(n + d) * u * frobenius2;
+  // Changes are measured relative to each eigenvalue, but never relative to
+  // less than kChangeFloor of the total: components that carry almost nothing
+  // are known only to the Gram matrix's rounding and must not hold the run back.
+  constexpr double kChangeFloor = 1e-9;
+  Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> eig;
+  for (;;) {
+    ys.push_back(op.apply(w));
+    ++passes;
+    ws.push_back(std::move(w));
+    // Extend G by the new block's column: Y_iᵀ·Y_b for every block i.
+    const Eigen::Index m_old = gram.rows(), lb = ys.back().cols(), m = m_old + lb;
+    gram.conservativeResize(m, m);
+    Eigen::Index offset = 0;
+    for (const Eigen::MatrixXd& y : ys) {
+      gram.block(offset, m_old, y.cols(), lb).noalias() = y.transpose() * ys.back();
+      offset += y.cols();
+    }
+    gram.block(m_old, 0, lb, m_old) = gram.block(0, m_old, m_old, lb).transpose();
+    eig.compute(gram, Eigen::EigenvaluesOnly);
+    previous = theta;
+    theta = eig.eigenvalues().reverse().head(std::min(k, m)).cwiseMax(0.0);
+    errors.push_back(std::max(0.0, frobenius2 - theta.head(std::min(k, m)).sum()));
+    // Stop: everything captured (span(K) holds A_c's rows), K fills the space,
+    // or the leading k Ritz values settled: the next move, extrapolated from the
+    // last two (ρ = c_b/c_{b−1}, remaining ≈ c_b·ρ/(1 − ρ)), is below tolerance.
+    if (frobenius2 - gram.trace() <= captured_floor || m == d) {
+      converged = true;
+      changes.push_back(0.0);
+      break;
+    }
+    if (previous.size() == k && theta.size() == k) {
+      const Eigen::ArrayXd scale = theta.array().max(kChangeFloor * frobenius2);
+      changes.push_back(((theta - previous).array().abs() / scale).maxCoeff());
+      const std::size_t c = changes.size();
+      if (changes[c - 1] == 0.0) {
+        converged = true;
+        break;
+      }
+      if (c >= 2 && changes[c - 1] < changes[c - 2]) {
+        const double rho = changes[c - 1] / changes[c - 2];
+        if (changes[c - 1] * rho / (1.0 - rho) < settings.tolerance) {
+          converged = true;
+          break;
+        }
+      }
+    }
+    if (passes + 2 > settings.max_passes) break;
+    // Next block: Z = A_cᵀ·Y_b, minus its part in span(K), orthonormalised.
+    Eigen::MatrixXd z = op.apply_transpose(ys.back());
+    ++passes;
+    const Eigen::Index width = std::min<Eigen::Index>(lb, d - m);
+    if (width < lb) z.conservativeResize(Eigen::NoChange, width);
+    const auto project_out = [&](Eigen::MatrixXd& block) {
+      for (int round = 0; round < 2; ++round)
+        for (const Eigen::MatrixXd& wi : ws) block.noalias() -= wi * (wi.transpose() * block);
+    };
+    const Eigen::VectorXd before = z.colwise().norm();
+    project_out(z);
+    // A column that vanished lies in span(K) already (an invariant subspace was
+    // found): replace it by a fresh Gaussian direction, so the block stays full.
+    const Eigen::VectorXd after = z.colwise().norm();
+    if (!((after.array() > 1e-10 * before.array()).all())) {
+      const Eigen::MatrixXd fresh = gaussian_matrix(d, width, settings.seed + 1 + std::uint64_t(ws.size()));
+      for (Eigen::Index j = 0; j < width; ++j)
+        if (!(after(j) > 1e-10 * before(j))) z.col(j) = fresh.col(j);
+      project_out(z);
+    }
+    orthonormalize(z);
+    project_out(z);
+    orthonormalize(z);
+    w = std::move(z);
+  }
+  // Rayleigh–Ritz: G = S·Θ·Sᵀ, and the l leading Ritz vectors V_l = K·S_l
+  // span the answer. Θ from the Gram matrix knows small σ² only to rounding of
+  // the largest (σ to √u·σ₁), so the final σ and vectors come from an SVD of
+  // A_c·V_l = Y·S_l itself: QR (CholeskyQR2, or Householder when the block is
+  // ill-conditioned), then the l×l SVD, which resolves σ down to about u·σ₁.
+  eig.compute(gram, Eigen::ComputeEigenvectors);
+  const Eigen::Index m = gram.rows(), lr = std::min(l, m);
+  const Eigen::MatrixXd s = eig.eigenvectors().rowwise().reverse().leftCols(lr);
+  Eigen::MatrixXd v_l = Eigen::MatrixXd::Zero(d, lr), y_l = Eigen::MatrixXd::Zero(n, lr);
+  Eigen::Index offset = 0;
+  for (std::size_t i = 0; i < ws.size(); ++i) {
+    const auto si = s.middleRows(offset, ws[i].cols());
+    v_l.noalias() += ws[i] * si;
+    y_l.noalias() += ys[i] * si;
+    offset += ws[i].cols();
+  }
+  ys.clear();
+  const Eigen::MatrixXd r = orthonormalize_cholesky_qr2(y_l);  // Householder when ill-conditioned
+  const Eigen::BDCSVD<Eigen::MatrixXd> svd(r, Eigen::ComputeFullV);
+  const Eigen::VectorXd all = svd.singularValues().array().square();
+  Eigen::MatrixXd right = v_l * svd.matrixV().leftCols(k);
+  apply_sign_convention(right);
+  basis.components = std::move(right);
+  basis.eigenvalues = all.head(k) / double(n - 1);
+  basis.passes = passes;
+  basis.converged = converged;
+  basis.last_relative_change = changes.empty() ? std::numeric_limits<double>::quiet_NaN() : changes.back();
+  // The residual of the l leading Ritz vectors: an l-dimensional subspace, as
+  // for the power scheme (‖A_c·K·S_l‖²_F = Σ of the l leading Ritz values).
+  set_residual(basis, frobenius2, all.sum(), n, d);
+  basis.optimality_gap_estimate = errors.back() <= captured_floor ? 0.0 : extrapolated_gap(errors, frobenius2);
+}
+
+}  // namespace
+
 Basis solve_randomized(const CenteredOperator& op, const RandomizedSettings& settings) {
   const Eigen::Index n = op.rows(), d = op.cols();
   if (n < 2) throw data_error("need at least 2 observations to estimate a covariance, got " + std::to_string(n));
@@ -97,8 +313,6 @@ Basis solve_randomized(const CenteredOperator& op, const RandomizedSettings& set
   if (settings.oversample < 0) throw usage_error("--oversample must be 0 or more");
   if (settings.power_iterations < -1) throw usage_error("--power-iters must be 0 or more (or -1 for adaptive)");
   const Eigen::Index l = std::min<Eigen::Index>(k + settings.oversample, smallest);
-  const bool adaptive = settings.power_iterations < 0;
-  const int fixed_passes = adaptive ? 0 : 2 * settings.power_iterations + 2;
   const double denom = double(n - 1);
 
   Basis basis;
@@ -108,109 +322,17 @@ Basis solve_randomized(const CenteredOperator& op, const RandomizedSettings& set
   basis.total_variance = basis.variable_variances.sum();
   const double frobenius2 = basis.total_variance * denom;  // ‖A_c‖²_F
 
-  // Pass 1: Y = A_c·Ω, orthonormalised to Q.
-  Eigen::MatrixXd q = op.apply(gaussian_matrix(d, l, settings.seed));
-  orthonormalize(q);
-  Eigen::MatrixXd w;  // d×l, orthonormal basis of the right (variable) side
-  int passes = 1;
-  bool last_on_right = false;  // the latest SVD factors Z = A_cᵀQ (true) or Y = A_c·W (false)
-  Eigen::MatrixXd w_used;      // for a Y-side finish: the W that Y = A_c·W was formed with
-  Eigen::BDCSVD<Eigen::MatrixXd> svd;
-  Eigen::VectorXd sigma2, previous_sigma2;
-  std::vector<double> errors;  // rank-k error² of each estimate, for the extrapolation
-  double change = std::numeric_limits<double>::infinity();
-  bool converged = false;
-
-  for (;;) {
-    Eigen::MatrixXd r;
-    if (!last_on_right) {
-      // Z = A_cᵀ·Q = W·R: σ(R) = σ(QᵀA_c).
-      w = op.apply_transpose(q);
-      r = orthonormalize(w);
-      last_on_right = true;
-    } else {
-      // Y = A_c·W = Q·R: σ(R) = σ(A_c·W).
-      q = op.apply(w);
-      r = orthonormalize(q);
-      w_used = w;
-      last_on_right = false;
-    }
-    ++passes;
-    svd.compute(r, Eigen::ComputeFullU | Eigen::ComputeFullV);
-    previous_sigma2 = sigma2;
-    sigma2 = svd.singularValues().array().square();
-    errors.push_back(std::max(0.0, frobenius2 - sigma2.head(k).sum()));
-    if (previous_sigma2.size() == sigma2.size()) {
-      // Largest move of any of the leading k eigenvalues, relative to the
-      // total variance (so components that carry almost nothing do not hold
-      // the run hostage to their own slow convergence).
-      change = (sigma2.head(k) - previous_sigma2.head(k)).cwiseAbs().maxCoeff() / frobenius2;
-    }
-    if (!adaptive) {
-      if (passes >= fixed_passes) break;
-      continue;
-    }
-    // A sampled subspace as wide as min(N, d) already holds all of A_c after
-    // two passes; otherwise stop when the estimates settle, or at the cap.
-    if (l == smallest && passes >= 2) {
-      converged = true;
-      change = 0.0;
-      break;
-    }
-    if (change < settings.tolerance) {
-      converged = true;
-      break;
-    }
-    if (passes >= settings.max_passes) break;
+  if (settings.power_iterations >= 0) {
+    subspace_iteration(op, k, l, settings.power_iterations, settings.seed, frobenius2, basis);
+  } else if (l == smallest) {
+    subspace_iteration(op, k, l, 0, settings.seed, frobenius2, basis);  // two passes are exact
+  } else {
+    block_krylov(op, k, l, settings, frobenius2, basis);
   }
-
-  // Right singular vectors of A_c restricted to the sampled subspace.
-  Eigen::MatrixXd right = last_on_right ? Eigen::MatrixXd(w * svd.matrixU().leftCols(k))
-                                        : Eigen::MatrixXd(w_used * svd.matrixV().leftCols(k));
-  apply_sign_convention(right);
-  basis.components = std::move(right);
-  basis.eigenvalues = sigma2.head(k) / denom;
   basis.solver = "randomized";
   basis.sample_size = l;
   basis.oversample = int(l - k);
-  basis.passes = passes;
   basis.seed = settings.seed;
-  basis.converged = adaptive ? converged : true;
-  basis.last_relative_change = std::isfinite(change) ? change : std::numeric_limits<double>::quiet_NaN();
-
-  // Captured-subspace residual ‖A_c‖²_F − ‖P·A_c‖²_F. Both terms carry
-  // relative rounding of order γ_n = n·u/(1 − n·u) (Higham, Accuracy and
-  // Stability of Numerical Algorithms, §3.1), n = N + d, so a difference
-  // below γ_n·‖A_c‖²_F is noise: it is clamped to that floor.
-  const double u = std::numeric_limits<double>::epsilon() / 2.0;
-  const double nu = double(n + d) * u;
-  const double floor = nu / (1.0 - nu) * frobenius2;
-  basis.residual_floor = floor / denom;
-  basis.subspace_residual = std::max(frobenius2 - sigma2.sum(), floor) / denom;
-
-  // Distance of the rank-k error from optimal. When the subspace is complete
-  // it is 0. Otherwise the rank-k error² E_m of successive passes falls
-  // roughly geometrically (HMT §10.4: the power scheme contracts by
-  // (σ_{k+1}/σ_l)^2 per pass pair); with steps Δ_m = E_{m−1} − E_m and
-  // ratio ρ = Δ_m/Δ_{m−1} < 1, the remaining fall is about Δ_m·ρ/(1 − ρ)
-  // (Aitken's extrapolation). Unknown (NaN) with fewer than 3 estimates or
-  // when the steps do not shrink.
-  double gap = std::numeric_limits<double>::quiet_NaN();
-  if (l == smallest && passes >= 2) {
-    gap = 0.0;
-  } else if (errors.size() >= 3) {
-    const std::size_t m = errors.size() - 1;
-    const double step = errors[m - 1] - errors[m], before = errors[m - 2] - errors[m - 1];
-    const double current = errors[m];
-    if (step <= 1e-15 * frobenius2 || current <= 0.0) {
-      gap = 0.0;
-    } else if (before > 0.0 && step < before) {
-      const double rho = step / before;
-      const double remaining = step * rho / (1.0 - rho);
-      if (remaining < current) gap = std::sqrt(current / (current - remaining)) - 1.0;
-    }
-  }
-  basis.optimality_gap_estimate = gap;
   return basis;
 }
 

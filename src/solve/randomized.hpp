@@ -1,22 +1,25 @@
 // pcasweep/solve/randomized.hpp — truncated PCA by randomized SVD.
 //
-// Contract: Halko, Martinsson & Tropp (SIAM Review 53(2), 2011), Algorithms
-// 4.3/4.4 with re-orthonormalisation between passes, run on the centred-data
-// operator only (no centred copy of the data is ever formed):
-//   Ω  d×l Gaussian test matrix, l = min(k + p, N, d), from a counter-based
-//      generator: bit-identical for a seed whatever the thread count;
-//   passes alternate Y = A_c·W (N×l) and Z = A_cᵀ·Q (d×l), each followed by
-//      an orthonormalisation (Householder QR);
-//   the small SVD of the projected l×l factor gives σ; eigenvalues σ²/(N−1),
-//   components = right singular vectors of A_c, sign by apply_sign_convention.
-// The run ends after 2q+2 passes for a fixed q, or — the default, q = −1 —
-// when none of the leading k eigenvalue estimates moves by more than
-// kDefaultTolerance × the total variance between two successive passes
-// (each pass yields an estimate: σ(QᵀA_c) after a Aᵀ-pass, σ(A_c·W) after an
-// A-pass; both rise monotonically towards σ(A_c)), or at kMaxAdaptivePasses.
-// With a sampled subspace as wide as min(N, d) two passes are exact and the
-// run stops there. Cost: passes·2·N·d·l flops; memory O((N+d)·l) besides
-// the data.
+// Contract: truncated PCA of the centred-data operator (no centred copy of
+// the data is ever formed), from a Gaussian test matrix Ω (d×l,
+// l = min(k + p, N, d)) drawn by a counter-based generator: bit-identical for
+// a seed whatever the thread count. Eigenvalues σ²/(N−1), components = right
+// singular vectors of A_c, sign by apply_sign_convention. Two schemes:
+//  - fixed q (power_iterations >= 0): Halko, Martinsson & Tropp (SIAM Review
+//    53(2), 2011), Algorithms 4.3/4.4: 2q + 2 passes alternating Y = A_c·W
+//    (N×l) and Z = A_cᵀ·Q (d×l), each orthonormalised (Householder QR), then
+//    the small SVD of the projected l×l factor;
+//  - adaptive (the default, q = −1): randomized block Krylov iteration (Musco
+//    & Musco, NeurIPS 2015) with blocks of width l and Rayleigh–Ritz on the
+//    whole Krylov space after every block; it stops when the leading k
+//    eigenvalue estimates settle (their next relative move, extrapolated from
+//    the last two, is below `tolerance`), when the space holds all of A_c, or
+//    at `max_passes`. docs/performance.md gives the measurements behind it.
+// A sample as wide as min(N, d) is exact in two passes and stops there.
+// Cost: passes·2·N·d·l flops plus, for block Krylov, O((N + d)·m·l) for the
+// Gram matrix and projections (m = Krylov width); memory: the data plus
+// O((N + d)·l) for the power scheme, O((N + d)·m) for block Krylov
+// (m <= l·(max_passes + 1)/2).
 #pragma once
 
 #include <cstdint>
@@ -27,13 +30,12 @@
 
 namespace pcasweep {
 
-// Adaptive stopping rule: largest change of any of the leading k eigenvalue
-// estimates between two successive passes, relative to the total variance.
-// Chosen from measurements (docs/performance.md): on the lfw faces (200×625,
-// k = 20) it leaves the leading 20 eigenvalues within about 2e-5 relative.
-inline constexpr double kDefaultTolerance = 5e-8;
-// At most this many products with the data in adaptive mode (= 24.5 power iterations).
-inline constexpr int kMaxAdaptivePasses = 51;
+// Adaptive stopping rule: the extrapolated next move of any of the leading k
+// eigenvalue estimates, relative to that eigenvalue (never to less than 1e-9
+// of the total variance). Chosen from measurements (docs/performance.md).
+inline constexpr double kDefaultTolerance = 1e-6;
+// At most this many products with the data in adaptive mode (13 Krylov blocks).
+inline constexpr int kMaxAdaptivePasses = 25;
 
 struct RandomizedSettings {
   Eigen::Index rank = 0;          // k, components returned (1 <= k <= min(N, d))
