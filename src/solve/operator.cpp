@@ -19,17 +19,19 @@ DenseOperator::DenseOperator(const Eigen::MatrixXd& X) : X_(X) {
 }
 
 Eigen::MatrixXd DenseOperator::apply(const Eigen::MatrixXd& omega) const {
-  // A_c·Ω = A·Ω − 1·(μᵀΩ): the centring costs one row vector.
-  Eigen::MatrixXd y = X_ * omega;
-  const Eigen::RowVectorXd shift = mean_.transpose() * omega;
-  y.rowwise() -= shift;
+  // A_c·Ω = A·Ω − 1·(μᵀΩ): the centring costs one row vector. The result
+  // starts as −1·(μᵀΩ) and the product is accumulated onto it (GEMM with
+  // β = 1), so no separate zeroing or subtraction pass over N×l is made.
+  Eigen::MatrixXd y(X_.rows(), omega.cols());
+  y.rowwise() = -(mean_.transpose() * omega);
+  y.noalias() += X_ * omega;
   return y;
 }
 
 Eigen::MatrixXd DenseOperator::apply_transpose(const Eigen::MatrixXd& y) const {
-  // A_cᵀ·Y = AᵀY − μ·(1ᵀY).
-  Eigen::MatrixXd z = X_.transpose() * y;
-  z.noalias() -= mean_ * y.colwise().sum();
+  // A_cᵀ·Y = AᵀY − μ·(1ᵀY), accumulated onto the rank-one term as above.
+  Eigen::MatrixXd z = -mean_ * y.colwise().sum();
+  z.noalias() += X_.transpose() * y;
   return z;
 }
 

@@ -184,9 +184,18 @@ void subspace_iteration(const CenteredOperator& op, Eigen::Index k, Eigen::Index
 void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, const RandomizedSettings& settings,
                   double frobenius2, Basis& basis) {
   const Eigen::Index n = op.rows(), d = op.cols();
-  std::vector<Eigen::MatrixXd> ws, ys;  // K's blocks (d×l_b) and Y_b = A_c·W_b (N×l_b)
+  // The Krylov space lives on the smaller side: the variables (s = d, blocks
+  // multiplied by A_c) when d <= N, else the observations (s = N, blocks
+  // multiplied by A_cᵀ; its Ritz vectors are then left singular vectors).
+  // Projections and orthonormalisations cost O(s·m·l) per block, so on wide
+  // data (2000×16384) this side is several times cheaper.
+  const bool right_side = d <= n;
+  const Eigen::Index space = right_side ? d : n;
+  const auto forward = [&](const Eigen::MatrixXd& x) { return right_side ? op.apply(x) : op.apply_transpose(x); };
+  const auto backward = [&](const Eigen::MatrixXd& y) { return right_side ? op.apply_transpose(y) : op.apply(y); };
+  std::vector<Eigen::MatrixXd> ws, ys;  // K's blocks (s×l_b) and Y_b = forward(W_b)
   Eigen::MatrixXd gram;                 // m×m, Y's Gram matrix
-  Eigen::MatrixXd w = gaussian_matrix(d, l, settings.seed);
+  Eigen::MatrixXd w = gaussian_matrix(space, l, settings.seed);
   orthonormalize(w);
   int passes = 0;
   Eigen::VectorXd theta, previous;  // leading k Ritz values (σ²), this block and the last
@@ -200,7 +209,7 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   constexpr double kChangeFloor = 1e-9;
   Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> eig;
   for (;;) {
-    ys.push_back(op.apply(w));
+    ys.push_back(forward(w));
     ++passes;
     ws.push_back(std::move(w));
     // Extend G by the new block's column: Y_iᵀ·Y_b for every block i.
@@ -219,7 +228,7 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
     // Stop: everything captured (span(K) holds A_c's rows), K fills the space,
     // or the leading k Ritz values settled: the next move, extrapolated from the
     // last two (ρ = c_b/c_{b−1}, remaining ≈ c_b·ρ/(1 − ρ)), is below tolerance.
-    if (frobenius2 - gram.trace() <= captured_floor || m == d) {
+    if (frobenius2 - gram.trace() <= captured_floor || m == space) {
       converged = true;
       changes.push_back(0.0);
       break;
@@ -241,10 +250,10 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
       }
     }
     if (passes + 2 > settings.max_passes) break;
-    // Next block: Z = A_cᵀ·Y_b, minus its part in span(K), orthonormalised.
-    Eigen::MatrixXd z = op.apply_transpose(ys.back());
+    // Next block: Z = backward(Y_b), minus its part in span(K), orthonormalised.
+    Eigen::MatrixXd z = backward(ys.back());
     ++passes;
-    const Eigen::Index width = std::min<Eigen::Index>(lb, d - m);
+    const Eigen::Index width = std::min<Eigen::Index>(lb, space - m);
     if (width < lb) z.conservativeResize(Eigen::NoChange, width);
     const auto project_out = [&](Eigen::MatrixXd& block) {
       for (int round = 0; round < 2; ++round)
@@ -256,7 +265,7 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
     // found): replace it by a fresh Gaussian direction, so the block stays full.
     const Eigen::VectorXd after = z.colwise().norm();
     if (!((after.array() > 1e-10 * before.array()).all())) {
-      const Eigen::MatrixXd fresh = gaussian_matrix(d, width, settings.seed + 1 + std::uint64_t(ws.size()));
+      const Eigen::MatrixXd fresh = gaussian_matrix(space, width, settings.seed + 1 + std::uint64_t(ws.size()));
       for (Eigen::Index j = 0; j < width; ++j)
         if (!(after(j) > 1e-10 * before(j))) z.col(j) = fresh.col(j);
       project_out(z);
@@ -274,7 +283,7 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   eig.compute(gram, Eigen::ComputeEigenvectors);
   const Eigen::Index m = gram.rows(), lr = std::min(l, m);
   const Eigen::MatrixXd s = eig.eigenvectors().rowwise().reverse().leftCols(lr);
-  Eigen::MatrixXd v_l = Eigen::MatrixXd::Zero(d, lr), y_l = Eigen::MatrixXd::Zero(n, lr);
+  Eigen::MatrixXd v_l = Eigen::MatrixXd::Zero(space, lr), y_l = Eigen::MatrixXd::Zero(right_side ? n : d, lr);
   Eigen::Index offset = 0;
   for (std::size_t i = 0; i < ws.size(); ++i) {
     const auto si = s.middleRows(offset, ws[i].cols());
@@ -284,9 +293,12 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   }
   ys.clear();
   const Eigen::MatrixXd r = orthonormalize_cholesky_qr2(y_l);  // Householder when ill-conditioned
-  const Eigen::BDCSVD<Eigen::MatrixXd> svd(r, Eigen::ComputeFullV);
+  const Eigen::BDCSVD<Eigen::MatrixXd> svd(r, Eigen::ComputeFullU | Eigen::ComputeFullV);
   const Eigen::VectorXd all = svd.singularValues().array().square();
-  Eigen::MatrixXd right = v_l * svd.matrixV().leftCols(k);
+  // Right side: A_c·V_l = Q·U_r·Σ·V_rᵀ, so A_c's right singular vectors are V_l·V_r.
+  // Left side: A_cᵀ·U_l = Q·U_r·Σ·V_rᵀ, so they are Q·U_r.
+  Eigen::MatrixXd right = right_side ? Eigen::MatrixXd(v_l * svd.matrixV().leftCols(k))
+                                     : Eigen::MatrixXd(y_l * svd.matrixU().leftCols(k));
   apply_sign_convention(right);
   basis.components = std::move(right);
   basis.eigenvalues = all.head(k) / double(n - 1);
