@@ -29,18 +29,22 @@ struct SolverSettings {
 // Rank a truncated solver computes when SolverSettings::rank is 0.
 inline constexpr Eigen::Index kDefaultRank = 32;
 
-// How `auto` chooses (measured on the reference machine; docs/performance.md,
-// "Choosing a solver"). Exact: scatter N·d² flops at kScatterFlopRate plus the
-// symmetric eigensolver's d³ at kEigenFlopRate. Randomized: kTypicalPasses
-// products of 2·N·d·l flops at kProductFlopRate. Randomized wins when its
+// How `auto` chooses (measured on the reference machine with OpenBLAS,
+// `pcasweep-bench crossover`; docs/performance.md, "Choosing a solver").
+// Exact: scatter N·d² at kScatterFlopRate plus the symmetric eigensolver's d³
+// at kEigenFlopRate (fitted: d = 1024 took 0.165 s, d = 2048 1.45 s).
+// Randomized: kTypicalPasses products of 2·N·d·l flops at kProductFlopRate
+// (75–97 GFLOP/s seen, overheads included). Randomized wins when its
 // prediction is below kCrossoverMargin times the exact one.
-inline constexpr double kScatterFlopRate = 40e9;
-inline constexpr double kEigenFlopRate = 1.5e9;
-inline constexpr double kProductFlopRate = 40e9;
-inline constexpr double kTypicalPasses = 8.0;
+inline constexpr double kScatterFlopRate = 140e9;
+inline constexpr double kEigenFlopRate = 6e9;
+inline constexpr double kProductFlopRate = 75e9;
+inline constexpr double kTypicalPasses = 9.0;
 inline constexpr double kCrossoverMargin = 0.5;
-// d up to this always goes to the exact solver: in every shape measured here
-// (N = 2000 and 20000, d = 256..1024, rank 32) exact was the faster one.
+// d up to this always goes to the exact solver, which then gives every
+// eigenvalue (the rules for k and the near-zero diagnosis read the whole
+// spectrum). Measured cost of that choice at rank 32: exact 0.31 s against
+// randomized 0.16 s at N = 20000, d = 1024; 0.18 against 0.02 s at N = 2000.
 inline constexpr Eigen::Index kAlwaysExactDimension = 1024;
 // The exact solver refuses when its d×d matrices would need more than this.
 inline constexpr double kExactMemoryLimit = 4.0 * 1073741824.0;
