@@ -91,8 +91,10 @@ nlohmann::json solver_json(const Basis& b) {
   if (b.solver == "randomized") {
     j["sample_size"] = b.sample_size;
     j["oversample"] = b.oversample;
+    j["scheme"] = b.scheme;
     j["passes"] = b.passes;
-    j["power_iterations"] = 0.5 * (b.passes - 2);
+    if (b.scheme == "block Krylov") j["krylov_width"] = b.krylov_width;
+    else j["power_iterations"] = (b.passes - 2) / 2;
     j["seed"] = b.seed;
     j["converged"] = b.converged;
     j["last_relative_change"] = finite_or_null(b.last_relative_change);
@@ -104,7 +106,8 @@ nlohmann::json solver_json(const Basis& b) {
         "subspace_residual: variance (sample units^2, /(N-1)) outside the sampled subspace of sample_size "
         "vectors, exact up to rounding: trace - sum of its captured eigenvalues, clamped at the rounding floor. "
         "optimality_gap_estimate: estimated relative excess of the rank-r Frobenius error over the optimal "
-        "rank-r error (0 = optimal), extrapolated from the last passes; null when it cannot be estimated.";
+        "rank-r error (0 = optimal), extrapolated from the last passes; null when it cannot be estimated. "
+        "last_relative_change: largest move of a leading eigenvalue at the last step, relative to it.";
   }
   return j;
 }
@@ -114,10 +117,12 @@ std::string solver_lines(const Basis& b) {
   o << "solver: " << b.solver << " (" << b.solver_reason << "); " << b.rank() << " of " << b.dimension()
     << " components computed\n";
   if (b.solver == "randomized") {
-    o << "randomized: " << b.sample_size << " test vectors (" << b.oversample << " oversampling), " << b.passes
-      << " passes over the data (" << format_real(0.5 * (b.passes - 2), 3) << " power iterations), seed " << b.seed
-      << ", " << (b.converged ? "converged" : "stopped at the pass cap before converging")
-      << " (last move " << format_real(b.last_relative_change, 2) << " of the total variance)\n";
+    o << "randomized, " << b.scheme << ": " << b.sample_size << " test vectors (" << b.oversample
+      << " oversampling), " << b.passes << " passes over the data ("
+      << (b.scheme == "block Krylov" ? "Krylov space of " + std::to_string(b.krylov_width) + " vectors"
+                                     : std::to_string((b.passes - 2) / 2) + " power iterations")
+      << "), seed " << b.seed << ", " << (b.converged ? "converged" : "stopped at the pass cap before converging")
+      << " (last move " << format_real(b.last_relative_change, 2) << " of an eigenvalue)\n";
     o << "variance outside the sampled subspace = "
       << (b.subspace_residual <= b.residual_floor ? "<= " + format_real(b.residual_floor, 3) + " (rounding floor)"
                                                   : format_real(b.subspace_residual, 6))

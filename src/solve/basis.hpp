@@ -25,14 +25,20 @@ struct Basis {
   std::string solver_reason;     // why this solver ran, in words
 
   // Filled by the randomized solver (solve/randomized.hpp); left as below by exact.
-  Eigen::Index sample_size = 0;  // l = r + oversample, test vectors actually used
+  std::string scheme;            // "block Krylov" (adaptive default) or "power iterations" (fixed q)
+  Eigen::Index sample_size = 0;  // l = r + oversample, test vectors actually used (per Krylov block)
+  Eigen::Index krylov_width = 0; // block Krylov: columns of the whole Krylov space (0 for power iterations)
   int oversample = 0;            // p
   int passes = 0;                // products with the data (A_c·W or A_cᵀ·Q), 2q+2 for q power iterations
   std::uint64_t seed = 0;        // test-matrix seed
   bool converged = true;         // adaptive rule met its tolerance (false: stopped at the pass cap)
-  double last_relative_change = 0.0;  // largest relative move of the leading r eigenvalues at the last pass
-  // ‖A_c − P·A_c‖²_F/(N−1), P the projector on the l-dimensional sampled subspace:
-  // the variance that subspace misses, = total_variance − Σ of all l captured σ²/(N−1).
+  // Largest move of any of the leading r eigenvalue estimates at the last
+  // step, relative to that eigenvalue (block Krylov: never to less than 1e-9
+  // of the total variance); NaN when there was no earlier estimate.
+  double last_relative_change = 0.0;
+  // ‖A_c − P·A_c‖²_F/(N−1), P the projector on the l-dimensional sampled subspace
+  // (block Krylov: the span of the l leading Ritz vectors): the variance that
+  // subspace misses, = total_variance − Σ of all l captured σ²/(N−1).
   double subspace_residual = 0.0;
   // Rounding floor of that subtraction (Higham's γ_n·‖A_c‖²_F/(N−1), n = N + d);
   // a residual below it is clamped to it and only "≤ floor" is known.

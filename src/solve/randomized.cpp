@@ -162,6 +162,7 @@ void subspace_iteration(const CenteredOperator& op, Eigen::Index k, Eigen::Index
   apply_sign_convention(right);
   basis.components = std::move(right);
   basis.eigenvalues = sigma2.head(k) / double(op.rows() - 1);
+  basis.scheme = "power iterations";
   basis.passes = passes;
   basis.converged = true;
   basis.last_relative_change = change;
@@ -302,6 +303,8 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   apply_sign_convention(right);
   basis.components = std::move(right);
   basis.eigenvalues = all.head(k) / double(n - 1);
+  basis.scheme = "block Krylov";
+  basis.krylov_width = m;
   basis.passes = passes;
   basis.converged = converged;
   basis.last_relative_change = changes.empty() ? std::numeric_limits<double>::quiet_NaN() : changes.back();
