@@ -95,11 +95,13 @@ Eigen::MatrixXd read_npy(const std::string& path) {
   const auto open = header.find('(', header.find("'shape'"));
   long rows = 0, cols = 0;
   if (std::sscanf(header.c_str() + open, "(%ld, %ld)", &rows, &cols) != 2) throw data_error(path + ": not 2-D");
-  std::vector<double> buf(std::size_t(rows) * cols);
-  in.read(reinterpret_cast<char*>(buf.data()), std::streamsize(buf.size() * sizeof(double)));
+  // Column-major files (what scripts/bench writes) are read straight into the
+  // matrix, so peak RSS is the data plus what the solver adds, not two copies.
+  Eigen::MatrixXd m(fortran ? rows : cols, fortran ? cols : rows);
+  in.read(reinterpret_cast<char*>(m.data()), std::streamsize(m.size() * sizeof(double)));
   if (!in) throw data_error(path + ": truncated");
-  if (fortran) return Eigen::Map<Eigen::MatrixXd>(buf.data(), rows, cols);
-  return Eigen::Map<Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor>>(buf.data(), rows, cols);
+  if (!fortran) m.transposeInPlace();
+  return m;
 }
 
 void write_npy(const std::string& path, const Eigen::MatrixXd& m) {

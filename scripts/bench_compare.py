@@ -102,6 +102,7 @@ rows = []
 for decay, n, d, ks in cases:
     a = faces() if decay == "faces" else synthetic(n, d, decay)
     name = "lfw faces (whole)" if decay == "faces" else "%s %dx%d" % (decay, n, d)
+    name += " [data %.0f MiB]" % (a.nbytes / 2 ** 20)
     path = os.path.join(tmp, "a.npy")
     np.save(path, np.asfortranarray(a))
     t_np, (u, s, vt) = median_time(lambda: np.linalg.svd(a, full_matrices=False))

@@ -1,8 +1,7 @@
 #include "solve/exact.hpp"
 
-#include <Eigen/Eigenvalues>
-
 #include "core/error.hpp"
+#include "solve/symmetric_eigen.hpp"
 
 namespace pcasweep {
 
@@ -18,11 +17,9 @@ Basis solve_exact(const CenteredOperator& op) {
   basis.variable_variances = op.column_sums_of_squares() / denom;
   basis.total_variance = basis.variable_variances.sum();
 
-  Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> eig(covariance);
-  if (eig.info() != Eigen::Success) throw data_error("the symmetric eigensolver did not converge");
-  // Eigen returns ascending order; we want descending.
-  basis.eigenvalues = eig.eigenvalues().reverse();
-  basis.components = eig.eigenvectors().rowwise().reverse();
+  SymmetricEigen eig = symmetric_eigen(covariance, true);
+  basis.eigenvalues = std::move(eig.values);
+  basis.components = std::move(eig.vectors);
   // Round-off can leave the smallest eigenvalues a hair below zero; a
   // covariance is positive semidefinite, so clamp them to 0.
   basis.eigenvalues = basis.eigenvalues.cwiseMax(0.0);

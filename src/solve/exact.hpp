@@ -1,8 +1,8 @@
 // pcasweep/solve/exact.hpp — PCA through the covariance matrix.
 //
 // Contract: forms the d×d sample covariance S = A_cᵀA_c/(N−1) from the
-// operator (accumulated in blocks, in parallel), solves it with Eigen's
-// symmetric eigensolver, and returns every one of the d eigenpairs, the
+// operator (accumulated in blocks, in parallel), solves it with the
+// symmetric eigensolver of solve/symmetric_eigen.hpp, and returns every one of the d eigenpairs, the
 // (near-)zero ones included. Cost O(N·d² + d³), memory O(d²): the path for
 // small d (patches, bands).
 #pragma once

@@ -9,6 +9,7 @@
 #include <numbers>
 
 #include "core/error.hpp"
+#include "solve/symmetric_eigen.hpp"
 
 namespace pcasweep {
 
@@ -208,7 +209,6 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   // less than kChangeFloor of the total: components that carry almost nothing
   // are known only to the Gram matrix's rounding and must not hold the run back.
   constexpr double kChangeFloor = 1e-9;
-  Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> eig;
   for (;;) {
     ys.push_back(forward(w));
     ++passes;
@@ -222,9 +222,8 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
       offset += y.cols();
     }
     gram.block(m_old, 0, lb, m_old) = gram.block(0, m_old, m_old, lb).transpose();
-    eig.compute(gram, Eigen::EigenvaluesOnly);
     previous = theta;
-    theta = eig.eigenvalues().reverse().head(std::min(k, m)).cwiseMax(0.0);
+    theta = symmetric_eigen(gram, false).values.head(std::min(k, m)).cwiseMax(0.0);
     errors.push_back(std::max(0.0, frobenius2 - theta.head(std::min(k, m)).sum()));
     // Stop: everything captured (span(K) holds A_c's rows), K fills the space,
     // or the leading k Ritz values settled: the next move, extrapolated from the
@@ -281,9 +280,8 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   // the largest (σ to √u·σ₁), so the final σ and vectors come from an SVD of
   // A_c·V_l = Y·S_l itself: QR (CholeskyQR2, or Householder when the block is
   // ill-conditioned), then the l×l SVD, which resolves σ down to about u·σ₁.
-  eig.compute(gram, Eigen::ComputeEigenvectors);
   const Eigen::Index m = gram.rows(), lr = std::min(l, m);
-  const Eigen::MatrixXd s = eig.eigenvectors().rowwise().reverse().leftCols(lr);
+  const Eigen::MatrixXd s = symmetric_eigen(gram, true).vectors.leftCols(lr);
   Eigen::MatrixXd v_l = Eigen::MatrixXd::Zero(space, lr), y_l = Eigen::MatrixXd::Zero(right_side ? n : d, lr);
   Eigen::Index offset = 0;
   for (std::size_t i = 0; i < ws.size(); ++i) {
