@@ -174,7 +174,8 @@ void subspace_iteration(const CenteredOperator& op, Eigen::Index k, Eigen::Index
 
 // Adaptive default: randomized block Krylov iteration (Musco & Musco, "Randomized
 // block Krylov methods for stronger and faster approximate singular value
-// decomposition", NeurIPS 2015) on the variable side. Blocks W_0 = orth(Ω),
+// decomposition", NeurIPS 2015), written here for the variable side (the
+// observation side swaps A_c and A_cᵀ, see below). Blocks W_0 = orth(Ω),
 // W_{b+1} = orth(A_cᵀ·A_c·W_b minus its part in span(W_0..W_b)) (projected out
 // twice, "twice is enough"), so K = [W_0 … W_b] (d×m) is orthonormal and the
 // products Y_b = A_c·W_b are all reused: after each block the Rayleigh–Ritz
