@@ -25,6 +25,8 @@ import numpy as np
 import threadpoolctl
 from sklearn.utils.extmath import randomized_svd
 
+from bench_matrices import faces, synthetic
+
 ap = argparse.ArgumentParser()
 ap.add_argument("--bench", required=True)
 ap.add_argument("--repeat", type=int, default=5)
@@ -42,23 +44,6 @@ def median_time(f):
         out = f()
         ts.append(time.perf_counter() - t)
     return float(np.median(ts)), out
-
-
-def synthetic(n, d, decay, seed=1):
-    rng = np.random.default_rng(seed)
-    r = min(n, d)
-    u, _ = np.linalg.qr(rng.standard_normal((n, r)))
-    v, _ = np.linalg.qr(rng.standard_normal((d, r)))
-    i = np.arange(r)
-    s = np.exp(-i / 20.0) if decay == "fast" else 1.0 / (1.0 + i)
-    a = (u * s) @ v.T
-    return a - a.mean(axis=0)
-
-
-def faces():
-    x = np.load("/usr/lib/python3/dist-packages/skimage/data/lfw_subset.npy").reshape(200, -1)
-    x = np.round(x * 65535.0)
-    return x - x.mean(axis=0)
 
 
 def rel_error(a, v, opt_err):

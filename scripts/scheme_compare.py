@@ -2,9 +2,9 @@
 """Power iterations against block Krylov, by passes over the data (docs/performance.md,
 "Why block Krylov"). numpy only; run with Debian's /usr/bin/python3:
 
-    /usr/bin/python3 bench/scheme_compare.py
+    /usr/bin/python3 scripts/scheme_compare.py
 
-Matrices as in scripts/bench_compare.py (fast σ_i = e^(−i/20), slow σ_i = 1/(1+i), 20000×1024,
+Matrices from scripts/bench_matrices.py (fast σ_i = e^(−i/20), slow σ_i = 1/(1+i), 20000×1024,
 k = 64, p = 10; lfw faces from python3-skimage, k = 20). For each scheme and pass count it prints
 the excess of the rank-k Frobenius error over the optimum and the largest relative error of the
 leading eigenvalues (all k for the synthetic matrices, the leading 20 for the faces). Power
@@ -13,21 +13,7 @@ Krylov: the passes that built the space; its Ritz step reuses the products.
 """
 import numpy as np
 
-
-def synthetic(n, d, decay, seed=1):
-    rng = np.random.default_rng(seed)
-    r = min(n, d)
-    u, _ = np.linalg.qr(rng.standard_normal((n, r)))
-    v, _ = np.linalg.qr(rng.standard_normal((d, r)))
-    s = np.exp(-np.arange(r) / 20.0) if decay == "fast" else 1.0 / (1.0 + np.arange(r))
-    a = (u * s) @ v.T
-    return a - a.mean(axis=0)
-
-
-def faces():
-    x = np.load("/usr/lib/python3/dist-packages/skimage/data/lfw_subset.npy").reshape(200, -1)
-    x = np.round(x * 65535.0)
-    return x - x.mean(axis=0)
+from bench_matrices import faces, synthetic
 
 
 def report(name, scheme, passes, a, v, ev, s, k, lead):
