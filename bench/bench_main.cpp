@@ -228,9 +228,9 @@ int mode_orth(const Args& a) {
   const Eigen::MatrixXd g = gaussian_matrix(m, l, 3);
   Eigen::MatrixXd q;
   bool hh = false;
-  const auto tc = time_runs(repeat, [&] { q = g; orthonormalize_cholesky_qr2(q, &hh); });
+  const auto tc = time_runs(repeat, [&] { q = g; orthonormalize(q, &hh); });
   const double ortho_c = (q.transpose() * q - Eigen::MatrixXd::Identity(l, l)).norm();
-  const auto th = time_runs(repeat, [&] { q = g; orthonormalize(q); });
+  const auto th = time_runs(repeat, [&] { q = g; orthonormalize_householder(q); });
   const double ortho_h = (q.transpose() * q - Eigen::MatrixXd::Identity(l, l)).norm();
   nlohmann::json j = environment();
   j["mode"] = "orth";

@@ -48,7 +48,7 @@ Eigen::MatrixXd gaussian_matrix(Eigen::Index rows, Eigen::Index cols, std::uint6
   return g;
 }
 
-Eigen::MatrixXd orthonormalize(Eigen::MatrixXd& M) {
+Eigen::MatrixXd orthonormalize_householder(Eigen::MatrixXd& M) {
   const Eigen::Index m = M.rows(), l = M.cols();
   Eigen::HouseholderQR<Eigen::MatrixXd> qr(M);
   Eigen::MatrixXd r = qr.matrixQR().topRows(l).triangularView<Eigen::Upper>();
@@ -56,16 +56,19 @@ Eigen::MatrixXd orthonormalize(Eigen::MatrixXd& M) {
   return r;
 }
 
-Eigen::MatrixXd orthonormalize_cholesky_qr2(Eigen::MatrixXd& M, bool* fell_back) {
+Eigen::MatrixXd orthonormalize(Eigen::MatrixXd& M, bool* fell_back) {
   // CholeskyQR2 (Fukaya, Nakatsukasa, Yanagisawa & Yamamoto, 2014): two
   // rounds of Gram → Cholesky → triangular solve. It is stable while
   // cond(M) stays well below u^(-1/2) ≈ 1e8; we fall back to Householder QR
-  // when the first factor's diagonal spread (a lower bound on cond) exceeds
-  // 1e5 or the second Gram matrix is visibly not the identity.
+  // when a factor's diagonal spread (a lower bound on cond) exceeds 1e5 or
+  // the second Gram matrix is visibly not the identity.
   const Eigen::Index l = M.cols();
-  const auto cholesky_round = [&](Eigen::MatrixXd& block, Eigen::MatrixXd& r) {
+  // One round; `max_off_identity` bounds |G − I| (lower triangle) before the Cholesky.
+  const auto cholesky_round = [&](Eigen::MatrixXd& block, Eigen::MatrixXd& r, double max_off_identity) {
     Eigen::MatrixXd gram = Eigen::MatrixXd::Zero(l, l);
     gram.selfadjointView<Eigen::Lower>().rankUpdate(block.transpose());
+    const Eigen::MatrixXd off = (gram - Eigen::MatrixXd::Identity(l, l)).triangularView<Eigen::Lower>();
+    if (!(off.cwiseAbs().maxCoeff() < max_off_identity)) return false;
     Eigen::LLT<Eigen::MatrixXd> llt(gram);
     if (llt.info() != Eigen::Success) return false;
     r = llt.matrixU();
@@ -75,13 +78,9 @@ Eigen::MatrixXd orthonormalize_cholesky_qr2(Eigen::MatrixXd& M, bool* fell_back)
     return true;
   };
   Eigen::MatrixXd first = M, r1, r2;
-  bool ok = cholesky_round(first, r1);
-  if (ok) {
-    Eigen::MatrixXd gram = first.transpose() * first;
-    ok = (gram - Eigen::MatrixXd::Identity(l, l)).cwiseAbs().maxCoeff() < 0.1 && cholesky_round(first, r2);
-  }
+  const bool ok = cholesky_round(first, r1, std::numeric_limits<double>::infinity()) && cholesky_round(first, r2, 0.1);
   if (fell_back) *fell_back = !ok;
-  if (!ok) return orthonormalize(M);
+  if (!ok) return orthonormalize_householder(M);
   M = std::move(first);
   return (r2 * r1).triangularView<Eigen::Upper>();
 }
@@ -124,7 +123,8 @@ double extrapolated_gap(const std::vector<double>& errors, double frobenius2) {
 }
 
 // Fixed q (HMT Algorithm 4.4): 2q + 2 passes alternating Y = A_c·W and
-// Z = A_cᵀ·Q, each orthonormalised; the last factor's small SVD gives σ and
+// Z = A_cᵀ·Q, each orthonormalised (orthonormalize: CholeskyQR2, Householder
+// when ill-conditioned); the last factor's small SVD gives σ and
 // the right singular vectors. Also used, with q = 0, when the sample is as
 // wide as min(N, d): two passes are then exact.
 void subspace_iteration(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, int power_iterations,
@@ -279,8 +279,8 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   // Rayleigh–Ritz: G = S·Θ·Sᵀ, and the l leading Ritz vectors V_l = K·S_l
   // span the answer. Θ from the Gram matrix knows small σ² only to rounding of
   // the largest (σ to √u·σ₁), so the final σ and vectors come from an SVD of
-  // A_c·V_l = Y·S_l itself: QR (CholeskyQR2, or Householder when the block is
-  // ill-conditioned), then the l×l SVD, which resolves σ down to about u·σ₁.
+  // A_c·V_l = Y·S_l itself: QR, then the l×l SVD, which resolves σ down to
+  // about u·σ₁.
   const Eigen::Index m = gram.rows(), lr = std::min(l, m);
   const Eigen::MatrixXd s = symmetric_eigen(gram, true).vectors.leftCols(lr);
   Eigen::MatrixXd v_l = Eigen::MatrixXd::Zero(space, lr), y_l = Eigen::MatrixXd::Zero(right_side ? n : d, lr);
@@ -292,7 +292,7 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
     offset += ws[i].cols();
   }
   ys.clear();
-  const Eigen::MatrixXd r = orthonormalize_cholesky_qr2(y_l);  // Householder when ill-conditioned
+  const Eigen::MatrixXd r = orthonormalize(y_l);
   const Eigen::BDCSVD<Eigen::MatrixXd> svd(r, Eigen::ComputeFullU | Eigen::ComputeFullV);
   const Eigen::VectorXd all = svd.singularValues().array().square();
   // Right side: A_c·V_l = Q·U_r·Σ·V_rᵀ, so A_c's right singular vectors are V_l·V_r.

@@ -7,7 +7,7 @@
 // singular vectors of A_c, sign by apply_sign_convention. Two schemes:
 //  - fixed q (power_iterations >= 0): Halko, Martinsson & Tropp (SIAM Review
 //    53(2), 2011), Algorithms 4.3/4.4: 2q + 2 passes alternating Y = A_c·W
-//    (N×l) and Z = A_cᵀ·Q (d×l), each orthonormalised (Householder QR), then
+//    (N×l) and Z = A_cᵀ·Q (d×l), each orthonormalised (orthonormalize), then
 //    the small SVD of the projected l×l factor;
 //  - adaptive (the default, q = −1): randomized block Krylov iteration (Musco
 //    & Musco, NeurIPS 2015) with blocks of width l and Rayleigh–Ritz on the
@@ -57,14 +57,14 @@ Basis solve_randomized(const CenteredOperator& op, const RandomizedSettings& set
 Eigen::MatrixXd gaussian_matrix(Eigen::Index rows, Eigen::Index cols, std::uint64_t seed);
 
 // M: m×l, m >= l. Replaces M by Q (m×l, orthonormal columns) and returns R
-// (l×l upper triangular) with M = Q·R, by Householder QR (blocked, Eigen).
-// This is what the solver uses: measured faster here than CholeskyQR2 (see
-// docs/performance.md), and it needs no fallback for rank-deficient blocks.
-Eigen::MatrixXd orthonormalize(Eigen::MatrixXd& M);
+// (l×l upper triangular) with M = Q·R. By CholeskyQR2 (two rounds of Gram →
+// Cholesky → triangular solve: BLAS-3 work, 2–3× faster than Householder here,
+// docs/performance.md); when the block is too ill-conditioned for it (a rank-
+// deficient sample, say) by Householder QR instead, and then sets *fell_back.
+Eigen::MatrixXd orthonormalize(Eigen::MatrixXd& M, bool* fell_back = nullptr);
 
-// The same by CholeskyQR2 (two rounds of Gram → Cholesky → triangular solve),
-// kept for the measurement in pcasweep-bench; falls back to Householder when
-// the block is too ill-conditioned for Cholesky and then sets *fell_back.
-Eigen::MatrixXd orthonormalize_cholesky_qr2(Eigen::MatrixXd& M, bool* fell_back = nullptr);
+// The same by Householder QR (blocked, Eigen) always: orthonormalize's
+// fallback, and its comparison in pcasweep-bench.
+Eigen::MatrixXd orthonormalize_householder(Eigen::MatrixXd& M);
 
 }  // namespace pcasweep
