@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cstdio>
 #include <sstream>
+#include <vector>
 
 namespace pcasweep {
 
@@ -68,6 +69,20 @@ std::string esc(const std::string& s) {
     }
   }
   return o;
+}
+
+// Splits text at spaces into lines of at most `width` bytes (a word longer
+// than that stands alone on its line). Returns at least one line.
+std::vector<std::string> wrap_words(const std::string& text, std::size_t width) {
+  std::vector<std::string> lines(1);
+  std::istringstream words(text);
+  std::string word;
+  while (words >> word) {
+    if (!lines.back().empty() && lines.back().size() + 1 + word.size() > width) lines.emplace_back();
+    if (!lines.back().empty()) lines.back() += ' ';
+    lines.back() += word;
+  }
+  return lines;
 }
 
 std::string num(double v) {
@@ -306,6 +321,15 @@ std::string render_svg_chart(const ChartSpec& c) {
     const double lx = px1 + 22;
     double ly = py0 + 6;
     o << "<g font-size=\"13\">\n";
+    // An entry's text, word-wrapped to the panel's width (about 27 characters
+    // at 13 px), one line per 17 px; then the gap to the next entry.
+    const auto legend_text = [&](const std::string& text, double x, double cy) {
+      const std::vector<std::string> rows = wrap_words(text, 27);
+      for (std::size_t r = 0; r < rows.size(); ++r)
+        o << "<text x=\"" << num(x) << "\" y=\"" << num(cy + 4.5 + 17.0 * double(r)) << "\">" << esc(rows[r])
+          << "</text>\n";
+      ly += 24 + 17.0 * double(rows.size() - 1);
+    };
     for (std::size_t si = 0; si < c.series.size(); ++si) {
       const auto& s = c.series[si];
       if (!s.in_legend || s.name.empty()) continue;
@@ -315,26 +339,14 @@ std::string render_svg_chart(const ChartSpec& c) {
           << "\" stroke=\"" << colours[si] << "\" stroke-width=\"" << num(s.style.line_width) << "\""
           << (s.style.dash.empty() ? "" : " stroke-dasharray=\"" + s.style.dash + "\"") << "/>";
       o << marker_svg(s.style.marker, lx + 14, cy, std::min(s.style.marker_size, 6.0), colours[si], s.style.hollow, 1.8);
-      // Wrap long names onto a second line.
-      std::string name = s.name, second;
-      if (name.size() > 27) {
-        auto cut = name.rfind(' ', 27);
-        if (cut != std::string::npos && cut > 8) second = name.substr(cut + 1), name = name.substr(0, cut);
-      }
-      o << "<text x=\"" << num(lx + 36) << "\" y=\"" << num(cy + 4.5) << "\">" << esc(name) << "</text>\n";
-      if (!second.empty()) {
-        ly += 17;
-        o << "<text x=\"" << num(lx + 36) << "\" y=\"" << num(cy + 21.5) << "\">" << esc(second) << "</text>\n";
-      }
-      ly += 24;
+      legend_text(s.name, lx + 36, cy);
     }
     for (const auto& l : c.lines) {
       if (!l.in_legend || l.label.empty()) continue;
       const double cy = ly + 10;
       o << "<line x1=\"" << num(lx) << "\" x2=\"" << num(lx + 28) << "\" y1=\"" << num(cy) << "\" y2=\"" << num(cy)
         << "\" stroke=\"" << l.colour << "\" stroke-width=\"1.6\" stroke-dasharray=\"" << l.dash << "\"/>";
-      o << "<text x=\"" << num(lx + 36) << "\" y=\"" << num(cy + 4.5) << "\">" << esc(l.label) << "</text>\n";
-      ly += 24;
+      legend_text(l.label, lx + 36, cy);
     }
     o << "</g>\n";
   }

@@ -57,3 +57,23 @@ TEST_CASE("Okabe-Ito palette has its eight colours") {
   CHECK(p[1] == "#E69F00");  // orange (Okabe & Ito 2008)
   CHECK(p[5] == "#0072B2");  // blue
 }
+
+TEST_CASE("long legend entries wrap onto as many lines as they need, none wider than the panel") {
+  // The rate-distortion chart's reference line once ran out of the 960-px
+  // document: only two legend lines were allowed, and line labels not wrapped.
+  ChartSpec c;
+  c.title = "wrap";
+  ChartSeries s;
+  s.name = "Gaussian R(D) from the eigenvalues (reference; real patches can beat it)";
+  s.x = {0, 1};
+  s.y = {0, 1};
+  c.series.push_back(s);
+  c.lines.push_back({true, 0.5, "a vertical reference line whose label is also far too long for one row", "#000",
+                     "4 4", true});
+  const std::string svg = render_svg_chart(c);
+  for (const char* row : {">Gaussian R(D) from the<", ">eigenvalues (reference;<", ">real patches can beat it)<",
+                          ">a vertical reference line<", ">whose label is also far too<", ">long for one row<"}) {
+    INFO(row);
+    CHECK(svg.find(row) != std::string::npos);
+  }
+}
