@@ -87,6 +87,11 @@ Eigen::MatrixXd orthonormalize(Eigen::MatrixXd& M, bool* fell_back) {
 
 namespace {
 
+// Block Krylov returns the Ritz pairs of its Gram matrix as they are when the
+// k-th Ritz value is at least this fraction of the first (σ_k >= 1e-3·σ₁);
+// below it, one more product and an SVD resolve the small σ (block_krylov).
+constexpr double kGramRitzFloor = 1e-6;
+
 // The variance the captured subspace misses and what is known of its rounding:
 // ‖A_c‖²_F − ‖P·A_c‖²_F where `captured` = ‖P·A_c‖²_F. Both terms carry
 // relative rounding of order γ_n = n·u/(1 − n·u) (Higham, Accuracy and
@@ -176,14 +181,17 @@ void subspace_iteration(const CenteredOperator& op, Eigen::Index k, Eigen::Index
 // block Krylov methods for stronger and faster approximate singular value
 // decomposition", NeurIPS 2015), written here for the variable side (the
 // observation side swaps A_c and A_cᵀ, see below). Blocks W_0 = orth(Ω),
-// W_{b+1} = orth(A_cᵀ·A_c·W_b minus its part in span(W_0..W_b)) (projected out
-// twice, "twice is enough"), so K = [W_0 … W_b] (d×m) is orthonormal and the
-// products Y_b = A_c·W_b are all reused: after each block the Rayleigh–Ritz
-// values of A_c on span(K) are the eigenvalues of the Gram matrix G = YᵀY
-// (m×m, m = Σ block widths). Two passes per block, and convergence governed by
-// the square root of the spectral gap instead of the gap itself: on the slowly
-// decaying spectra measured in docs/performance.md this needs about half the
-// passes of the power scheme for far better accuracy.
+// W_{b+1} = orth(Z_b minus its part in span(W_0..W_b)) with Z_b = A_cᵀ·A_c·W_b
+// (projected out twice, "twice is enough"), so K = [W_0 … W_b] (d×m) is
+// orthonormal. After each block the Rayleigh–Ritz values of A_c on span(K) are
+// the eigenvalues of the Gram matrix G = KᵀA_cᵀA_cK (m×m, m = Σ block widths),
+// built without another look at the data: G_ib = Y_iᵀ·Y_b = Z_iᵀ·W_b for the
+// earlier blocks i < b (their Z_i were needed anyway to grow K; d×l_i·l_b
+// flops instead of N×l_i·l_b) and G_bb = Y_bᵀ·Y_b from the block's own product
+// Y_b = A_c·W_b. Two passes per block, and convergence governed by the square
+// root of the spectral gap instead of the gap itself: on the slowly decaying
+// spectra measured in docs/performance.md this needs about half the passes of
+// the power scheme for far better accuracy.
 void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, const RandomizedSettings& settings,
                   double frobenius2, Basis& basis) {
   const Eigen::Index n = op.rows(), d = op.cols();
@@ -196,8 +204,13 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   const Eigen::Index space = right_side ? d : n;
   const auto forward = [&](const Eigen::MatrixXd& x) { return right_side ? op.apply(x) : op.apply_transpose(x); };
   const auto backward = [&](const Eigen::MatrixXd& y) { return right_side ? op.apply_transpose(y) : op.apply(y); };
-  std::vector<Eigen::MatrixXd> ws, ys;  // K's blocks (s×l_b) and Y_b = forward(W_b)
-  Eigen::MatrixXd gram;                 // m×m, Y's Gram matrix
+  std::vector<Eigen::MatrixXd> ws, zs;  // K's blocks W_b (s×l_b) and Z_b = backward(Y_b) (s×l_b, unprojected)
+  // Observation side only: every Y_b = forward(W_b) (d×l_b), from which the
+  // components (A_c's right singular vectors) are formed at the end. The
+  // variable side keeps just the newest Y_b: its components lie in span(K).
+  std::vector<Eigen::MatrixXd> ys;
+  Eigen::MatrixXd y;                    // the newest Y_b
+  Eigen::MatrixXd gram;                 // m×m, G
   Eigen::MatrixXd w = gaussian_matrix(space, l, settings.seed);
   orthonormalize(w);
   int passes = 0;
@@ -211,17 +224,19 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   // are known only to the Gram matrix's rounding and must not hold the run back.
   constexpr double kChangeFloor = 1e-9;
   for (;;) {
-    ys.push_back(forward(w));
+    y = forward(w);
     ++passes;
+    if (!right_side) ys.push_back(y);
     ws.push_back(std::move(w));
-    // Extend G by the new block's column: Y_iᵀ·Y_b for every block i.
-    const Eigen::Index m_old = gram.rows(), lb = ys.back().cols(), m = m_old + lb;
+    // Extend G by the new block's column.
+    const Eigen::Index m_old = gram.rows(), lb = y.cols(), m = m_old + lb;
     gram.conservativeResize(m, m);
     Eigen::Index offset = 0;
-    for (const Eigen::MatrixXd& y : ys) {
-      gram.block(offset, m_old, y.cols(), lb).noalias() = y.transpose() * ys.back();
-      offset += y.cols();
+    for (const Eigen::MatrixXd& z : zs) {
+      gram.block(offset, m_old, z.cols(), lb).noalias() = z.transpose() * ws.back();
+      offset += z.cols();
     }
+    gram.block(m_old, m_old, lb, lb).noalias() = y.transpose() * y;
     gram.block(m_old, 0, lb, m_old) = gram.block(0, m_old, m_old, lb).transpose();
     previous = theta;
     theta = symmetric_eigen(gram, false).values.head(std::min(k, m)).cwiseMax(0.0);
@@ -251,11 +266,12 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
       }
     }
     if (passes + 2 > settings.max_passes) break;
-    // Next block: Z = backward(Y_b), minus its part in span(K), orthonormalised.
-    Eigen::MatrixXd z = backward(ys.back());
+    // Next block: Z_b = backward(Y_b), kept whole for G, then minus its part
+    // in span(K), orthonormalised.
+    zs.push_back(backward(y));
     ++passes;
     const Eigen::Index width = std::min<Eigen::Index>(lb, space - m);
-    if (width < lb) z.conservativeResize(Eigen::NoChange, width);
+    Eigen::MatrixXd z = zs.back().leftCols(width);
     const auto project_out = [&](Eigen::MatrixXd& block) {
       for (int round = 0; round < 2; ++round)
         for (const Eigen::MatrixXd& wi : ws) block.noalias() -= wi * (wi.transpose() * block);
@@ -276,29 +292,55 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
     orthonormalize(z);
     w = std::move(z);
   }
+  y.resize(0, 0);
+  zs.clear();
   // Rayleigh–Ritz: G = S·Θ·Sᵀ, and the l leading Ritz vectors V_l = K·S_l
-  // span the answer. Θ from the Gram matrix knows small σ² only to rounding of
-  // the largest (σ to √u·σ₁), so the final σ and vectors come from an SVD of
-  // A_c·V_l = Y·S_l itself: QR, then the l×l SVD, which resolves σ down to
-  // about u·σ₁.
+  // span the answer.
   const Eigen::Index m = gram.rows(), lr = std::min(l, m);
-  const Eigen::MatrixXd s = symmetric_eigen(gram, true).vectors.leftCols(lr);
-  Eigen::MatrixXd v_l = Eigen::MatrixXd::Zero(space, lr), y_l = Eigen::MatrixXd::Zero(right_side ? n : d, lr);
+  const SymmetricEigen eig = symmetric_eigen(gram, true);
+  const Eigen::MatrixXd s = eig.vectors.leftCols(lr);
+  Eigen::MatrixXd v_l = Eigen::MatrixXd::Zero(space, lr);
   Eigen::Index offset = 0;
-  for (std::size_t i = 0; i < ws.size(); ++i) {
-    const auto si = s.middleRows(offset, ws[i].cols());
-    v_l.noalias() += ws[i] * si;
-    y_l.noalias() += ys[i] * si;
-    offset += ws[i].cols();
+  for (const Eigen::MatrixXd& wi : ws) {
+    v_l.noalias() += wi * s.middleRows(offset, wi.cols());
+    offset += wi.cols();
   }
-  ys.clear();
-  const Eigen::MatrixXd r = orthonormalize(y_l);
-  const Eigen::BDCSVD<Eigen::MatrixXd> svd(r, Eigen::ComputeFullU | Eigen::ComputeFullV);
-  const Eigen::VectorXd all = svd.singularValues().array().square();
-  // Right side: A_c·V_l = Q·U_r·Σ·V_rᵀ, so A_c's right singular vectors are V_l·V_r.
-  // Left side: A_cᵀ·U_l = Q·U_r·Σ·V_rᵀ, so they are Q·U_r.
-  Eigen::MatrixXd right = right_side ? Eigen::MatrixXd(v_l * svd.matrixV().leftCols(k))
-                                     : Eigen::MatrixXd(y_l * svd.matrixU().leftCols(k));
+  ws.clear();
+  Eigen::VectorXd all;  // the l leading σ², decreasing
+  Eigen::MatrixXd right;
+  const Eigen::VectorXd theta_l = eig.values.head(lr).cwiseMax(0.0);
+  if (right_side && theta_l(k - 1) >= kGramRitzFloor * theta_l(0)) {
+    // G's rounding is of order u·σ₁² (as the exact path's covariance), so Θ
+    // holds σ_k² to about m·u·σ₁²/σ_k² <= 3e-8 relative here: the Ritz pairs
+    // are the answer.
+    all = theta_l;
+    right = v_l.leftCols(k);
+  } else {
+    // Smaller σ² than that G knows only to rounding of the largest (σ to
+    // √u·σ₁), so σ and the vectors come from an SVD of the product itself,
+    // Y_l = A_c·V_l (variable side: one more pass; observation side: from
+    // the stored Y_b): QR, then the l×l SVD, which resolves σ down to about u·σ₁.
+    Eigen::MatrixXd y_l;
+    if (right_side) {
+      y_l = forward(v_l);
+      ++passes;
+    } else {
+      y_l = Eigen::MatrixXd::Zero(d, lr);
+      offset = 0;
+      for (const Eigen::MatrixXd& yi : ys) {
+        y_l.noalias() += yi * s.middleRows(offset, yi.cols());
+        offset += yi.cols();
+      }
+      ys.clear();
+    }
+    const Eigen::MatrixXd r = orthonormalize(y_l);
+    const Eigen::BDCSVD<Eigen::MatrixXd> svd(r, Eigen::ComputeFullU | Eigen::ComputeFullV);
+    all = svd.singularValues().array().square();
+    // Variable side: A_c·V_l = Q·U_r·Σ·V_rᵀ, so A_c's right singular vectors are V_l·V_r.
+    // Observation side: A_cᵀ·U_l = Q·U_r·Σ·V_rᵀ, so they are Q·U_r.
+    right = right_side ? Eigen::MatrixXd(v_l * svd.matrixV().leftCols(k))
+                       : Eigen::MatrixXd(y_l * svd.matrixU().leftCols(k));
+  }
   apply_sign_convention(right);
   basis.components = std::move(right);
   basis.eigenvalues = all.head(k) / double(n - 1);
