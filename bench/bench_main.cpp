@@ -3,9 +3,13 @@
 // Contract: each mode prints one JSON object per line on stdout, so the
 // comparison script (scripts/bench) can read it. Modes:
 //   solve MATRIX.npy --k K [--solver exact|randomized] [--p P] [--q Q]
-//         [--seed S] [--repeat R] [--components OUT.npy]
-//       times solve() on the N×d float64 matrix (median of R runs) and, with
-//       --components, writes the d×k components as float64 .npy.
+//         [--tol T] [--precision double|single] [--seed S] [--repeat R]
+//         [--components OUT.npy]
+//       times building the operator and solve() on the N×d float64 matrix
+//       (median of R runs) and, with --components, writes the d×k components
+//       as float64 .npy. With --precision single the matrix is read as
+//       float32 before each run (untimed) and handed to a SingleOperator, so
+//       peak RSS is the float32 data plus the solver's working space.
 //   gemm --n N --d D --l L [--repeat R]
 //       rates of the two tall-skinny products of the randomized solver
 //       (N×d by d×l and its transpose product), double and float.
@@ -71,8 +75,10 @@ std::vector<double> time_runs(int repeat, F&& f) {
   return t;
 }
 
-// Minimal .npy (format 1.0/2.0) reader for little-endian float64 2-D arrays.
-Eigen::MatrixXd read_npy(const std::string& path) {
+// Minimal .npy (format 1.0/2.0) reader for little-endian float64 2-D arrays,
+// returned as Scalar (float64 → float32 rounds to nearest).
+template <class Scalar>
+Eigen::Matrix<Scalar, Eigen::Dynamic, Eigen::Dynamic> read_npy(const std::string& path) {
   std::ifstream in(path, std::ios::binary);
   if (!in) throw data_error(path + ": cannot open");
   char magic[8];
@@ -96,10 +102,15 @@ Eigen::MatrixXd read_npy(const std::string& path) {
   long rows = 0, cols = 0;
   if (std::sscanf(header.c_str() + open, "(%ld, %ld)", &rows, &cols) != 2) throw data_error(path + ": not 2-D");
   // Column-major files (what scripts/bench writes) are read straight into the
-  // matrix, so peak RSS is the data plus what the solver adds, not two copies.
-  Eigen::MatrixXd m(fortran ? rows : cols, fortran ? cols : rows);
-  in.read(reinterpret_cast<char*>(m.data()), std::streamsize(m.size() * sizeof(double)));
-  if (!in) throw data_error(path + ": truncated");
+  // matrix, a column at a time, so peak RSS is the data plus what the solver
+  // adds, not two copies.
+  Eigen::Matrix<Scalar, Eigen::Dynamic, Eigen::Dynamic> m(fortran ? rows : cols, fortran ? cols : rows);
+  Eigen::VectorXd column(m.rows());
+  for (Eigen::Index j = 0; j < m.cols(); ++j) {
+    in.read(reinterpret_cast<char*>(column.data()), std::streamsize(column.size() * sizeof(double)));
+    if (!in) throw data_error(path + ": truncated");
+    m.col(j) = column.cast<Scalar>();
+  }
   if (!fortran) m.transposeInPlace();
   return m;
 }
@@ -150,7 +161,11 @@ nlohmann::json environment() {
 
 int mode_solve(const Args& a) {
   if (a.positional.empty()) throw usage_error("solve: give MATRIX.npy");
-  const Eigen::MatrixXd X = read_npy(a.positional[0]);
+  const Precision precision = parse_precision(a.get("precision", "double"));
+  const bool single = precision == Precision::single_precision;
+  // Double: read once, every run builds its DenseOperator over it. Single:
+  // every run reads its own float32 copy, which the operator takes over.
+  const Eigen::MatrixXd X = single ? Eigen::MatrixXd() : read_npy<double>(a.positional[0]);
   SolverSettings s;
   s.choice = parse_solver_choice(a.get("solver", "randomized"));
   s.rank = std::stol(a.get("k", "16"));
@@ -160,16 +175,30 @@ int mode_solve(const Args& a) {
   s.tolerance = std::stod(a.get("tol", "0"));
   const int repeat = std::stoi(a.get("repeat", "5"));
   Basis basis;
-  const auto times = time_runs(repeat, [&] {
-    DenseOperator op(X);
-    basis = solve(op, s);
-  });
+  Eigen::Index rows = X.rows(), cols = X.cols();
+  std::vector<double> times;
+  for (int run = 0; run < repeat; ++run) {
+    Eigen::MatrixXf xf;
+    if (single) xf = read_npy<float>(a.positional[0]);
+    rows = single ? xf.rows() : rows;
+    cols = single ? xf.cols() : cols;
+    const auto start = Clock::now();
+    if (single) {
+      SingleOperator op(std::move(xf));
+      basis = solve(op, s);
+    } else {
+      DenseOperator op(X);
+      basis = solve(op, s);
+    }
+    times.push_back(std::chrono::duration<double>(Clock::now() - start).count());
+  }
   if (a.named.count("components")) write_npy(a.named.at("components"), basis.components.leftCols(s.rank));
   nlohmann::json j = environment();
   const double l = double(basis.sample_size);
   j["mode"] = "solve";
-  j["rows"] = X.rows();
-  j["cols"] = X.cols();
+  j["rows"] = rows;
+  j["cols"] = cols;
+  j["precision"] = single ? "single" : "double";
   j["k"] = s.rank;
   j["solver"] = basis.solver;
   j["reason"] = basis.solver_reason;
@@ -179,8 +208,8 @@ int mode_solve(const Args& a) {
   j["sample_size"] = basis.sample_size;
   j["converged"] = basis.converged;
   j["last_relative_change"] = basis.last_relative_change;
-  j["product_flops"] = basis.solver == "randomized" ? basis.passes * 2.0 * double(X.rows()) * double(X.cols()) * l
-                                                    : double(X.rows()) * double(X.cols()) * double(X.cols());
+  j["product_flops"] = basis.solver == "randomized" ? basis.passes * 2.0 * double(rows) * double(cols) * l
+                                                    : double(rows) * double(cols) * double(cols);
   j["eigenvalues"] = std::vector<double>(basis.eigenvalues.data(), basis.eigenvalues.data() + basis.eigenvalues.size());
   j["total_variance"] = basis.total_variance;
   j["subspace_residual"] = basis.subspace_residual;

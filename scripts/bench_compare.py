@@ -7,7 +7,10 @@ randomized_svd / numpy.linalg.svd (which do not) solve the same problem.
 Per case it prints seconds (median of R), GFLOP/s (nominal flop counts, stated below), the
 Frobenius error of projecting on the returned k components relative to the optimum from the
 full SVD, and the ratios ours/sklearn and ours/two-pass floor (2 GEMMs of N×d by d×(k+p) at
-the best rate pcasweep-bench measured for that shape in double precision).
+the best rate pcasweep-bench measured for that shape in the precision of the run: double, or
+float32 for our single-precision rows). "accurate" says whether our error/optimum is within
+sklearn's + 0.001. A second sklearn row runs randomized_svd on a float32 copy of the matrix
+(its products then run in float32 too), for comparison with our single-precision rows.
 Flop counts: randomized = passes · 2·N·d·l (l = k+10; sklearn passes = 2·n_iter+2, n_iter 7 when
 k < 0.1·min(N,d), else 4); exact = N·d² (scatter) + 9·d³ (eigensolver, nominal);
 numpy svd = 4·m·n² + 22·n³ (Golub & Van Loan's R-SVD count, m = max(N,d), n = min(N,d)).
@@ -70,12 +73,14 @@ gemm_cache = {}
 
 
 def floor_rate(n, d, l):
+    """Best GEMM rate (GFLOP/s) for the shape, per precision: {"double": .., "single": ..}."""
     key = (n, d, l)
     if key not in gemm_cache:
-        best = 0.0
+        best = {"double": 0.0, "single": 0.0}
         for exe in benches:
             g = bench_json(exe, ["gemm", "--n", str(n), "--d", str(d), "--l", str(l), "--repeat", str(R)])
-            best = max(best, g["double"]["a_times_omega_gflops"], g["double"]["at_times_y_gflops"])
+            best["double"] = max(best["double"], g["double"]["a_times_omega_gflops"], g["double"]["at_times_y_gflops"])
+            best["single"] = max(best["single"], g["float"]["a_times_omega_gflops"], g["float"]["at_times_y_gflops"])
             print("  gemm %s %dx%d by %dx%d: double %.1f / %.1f GFLOP/s (A·Ω / Aᵀ·Y), float %.1f / %.1f"
                   % (g["gemm"], n, d, d, l, g["double"]["a_times_omega_gflops"], g["double"]["at_times_y_gflops"],
                      g["float"]["a_times_omega_gflops"], g["float"]["at_times_y_gflops"]))
@@ -92,7 +97,8 @@ for decay, n, d, ks in cases:
     np.save(path, np.asfortranarray(a))
     t_np, (u, s, vt) = median_time(lambda: np.linalg.svd(a, full_matrices=False))
     m_, n_ = max(n, d), min(n, d)
-    rows.append((name, "-", "numpy.linalg.svd", t_np, (4 * m_ * n_ ** 2 + 22 * n_ ** 3) / t_np / 1e9, 1.0, None, None, None))
+    rows.append((name, "-", "numpy.linalg.svd", t_np, (4 * m_ * n_ ** 2 + 22 * n_ ** 3) / t_np / 1e9, 1.0, None, None, None,
+                 None))
     print("%s: numpy svd %.3f s" % (name, t_np), flush=True)
     for k in ks:
         opt_err = np.sqrt(np.sum(s[k:] ** 2))
@@ -100,19 +106,28 @@ for decay, n, d, ks in cases:
         n_iter = 7 if k < 0.1 * min(n, d) else 4
         t_sk, (_, _, vt_sk) = median_time(lambda: randomized_svd(a, k, random_state=0))
         e_sk = rel_error(a, vt_sk.T, opt_err)
-        rows.append((name, k, "sklearn randomized_svd", t_sk, (2 * n_iter + 2) * 2 * n * d * l / t_sk / 1e9, e_sk,
-                     None, None, None))
+        flops_sk = (2 * n_iter + 2) * 2 * n * d * l
+        rows.append((name, k, "sklearn randomized_svd", t_sk, flops_sk / t_sk / 1e9, e_sk, None, None, None, None))
+        a32 = a.astype(np.float32)
+        t_sk32, (_, _, vt_sk32) = median_time(lambda: randomized_svd(a32, k, random_state=0))
+        e_sk32 = rel_error(a, vt_sk32.T.astype(np.float64), opt_err)
+        del a32
+        rows.append((name, k, "sklearn randomized_svd (float32 input)", t_sk32, flops_sk / t_sk32 / 1e9, e_sk32,
+                     None, None, None, None))
         rate = floor_rate(n, d, l)
-        floor = 2 * 2 * n * d * l / (rate * 1e9)
         for exe in benches:
-            comp = os.path.join(tmp, "v.npy")
-            j = bench_json(exe, ["solve", path, "--solver", "randomized", "--k", str(k), "--repeat", str(R),
-                                 "--components", comp])
-            e = rel_error(a, np.load(comp), opt_err)
-            t = j["seconds_median"]
-            rows.append((name, k, "ours randomized (%s, %d passes)" % (j["gemm"], j["passes"]), t,
-                         j["product_flops"] / t / 1e9, e, t_sk / t, t / floor, j["peak_rss_kb"]))
-            print("  k=%d ours %s %.3f s err %.6f, sklearn %.3f s err %.6f" % (k, j["gemm"], t, e, t_sk, e_sk), flush=True)
+            for precision in ("double", "single"):
+                comp = os.path.join(tmp, "v.npy")
+                j = bench_json(exe, ["solve", path, "--solver", "randomized", "--k", str(k), "--repeat", str(R),
+                                     "--precision", precision, "--components", comp])
+                e = rel_error(a, np.load(comp), opt_err)
+                t = j["seconds_median"]
+                floor = 2 * 2 * n * d * l / (rate[precision] * 1e9)
+                rows.append((name, k, "ours randomized (%s, %s, %d passes)" % (j["gemm"], precision, j["passes"]), t,
+                             j["product_flops"] / t / 1e9, e, t_sk / t, t / floor, j["peak_rss_kb"],
+                             e <= e_sk + 0.001))
+                print("  k=%d ours %s %s %.3f s err %.6f, sklearn %.3f s err %.6f"
+                      % (k, j["gemm"], precision, t, e, t_sk, e_sk), flush=True)
         if d <= 2048:
             comp = os.path.join(tmp, "v.npy")
             j = bench_json(benches[0], ["solve", path, "--solver", "exact", "--k", str(k), "--repeat", str(R),
@@ -120,14 +135,14 @@ for decay, n, d, ks in cases:
             e = rel_error(a, np.load(comp), opt_err)
             t = j["seconds_median"]
             rows.append((name, k, "ours exact (%s)" % j["gemm"], t, (n * d * d + 9 * d ** 3) / t / 1e9, e, t_sk / t,
-                         None, j["peak_rss_kb"]))
+                         None, j["peak_rss_kb"], e <= e_sk + 0.001))
 
 print()
-print("| matrix | k | solver | seconds | GFLOP/s | error/optimum | sklearn/ours | ours/floor | peak RSS MiB |")
-print("|---|---|---|---|---|---|---|---|---|")
-for name, k, solver, t, gf, e, sp, fl, rss in rows:
-    print("| %s | %s | %s | %.3f | %.1f | %.6f | %s | %s | %s |" % (
-        name, k, solver, t, gf, e, "%.2f" % sp if sp else "", "%.1f" % fl if fl else "",
-        "%.0f" % (rss / 1024) if rss else ""))
+print("| matrix | k | solver | seconds | GFLOP/s | error/optimum | accurate | sklearn/ours | ours/floor | peak RSS MiB |")
+print("|---|---|---|---|---|---|---|---|---|---|")
+for name, k, solver, t, gf, e, sp, fl, rss, ok in rows:
+    print("| %s | %s | %s | %.3f | %.1f | %.6f | %s | %s | %s | %s |" % (
+        name, k, solver, t, gf, e, "" if ok is None else ("yes" if ok else "NO"), "%.2f" % sp if sp else "",
+        "%.1f" % fl if fl else "", "%.0f" % (rss / 1024) if rss else ""))
 print()
 print("python peak RSS: %.0f MiB" % (resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024))

@@ -21,6 +21,7 @@ struct ImageOptionText {
   int oversample = 10;
   int power_iters = -1;        // -1: adaptive
   std::uint64_t seed = 1;
+  std::string precision = "double";
 };
 
 // Declares the positional IMAGE (required: an image or a recording) and MORE
@@ -28,7 +29,7 @@ struct ImageOptionText {
 void add_input_arguments(CLI::App& sub, std::string& input, std::vector<std::string>& more);
 
 // Declares --patch, --stride, --colour, --drop-alpha, --layout and the solver
-// options (--solver, --rank, --oversample, --power-iters, --seed) on `sub`.
+// options (--solver, --rank, --oversample, --power-iters, --seed, --precision) on `sub`.
 void add_image_options(CLI::App& sub, ImageOptionText& text);
 
 // Turns the option text into settings. Throws Error(usage).

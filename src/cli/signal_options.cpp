@@ -65,6 +65,7 @@ SignalStudySettings signal_settings(const SignalOptionText& text, const CLI::App
   s.solver.oversample = option_value<int>(app, "--oversample", s.solver.oversample);
   s.solver.power_iterations = option_value<int>(app, "--power-iters", s.solver.power_iterations);
   s.solver.seed = option_value<std::uint64_t>(app, "--seed", s.solver.seed);
+  s.solver.precision = parse_precision(option_value<std::string>(app, "--precision", "double"));
   if (text.window < 1) throw usage_error("--window must be at least 1 frame, not " + std::to_string(text.window));
   if (text.hop == 0) {
     throw usage_error("--hop must be at least 1 frame (the step from one window's start to the next), not 0");
@@ -98,7 +99,8 @@ nlohmann::json signal_settings_json(const SignalStudySettings& s) {
                                   {"rank", s.solver.rank},
                                   {"oversample", s.solver.oversample},
                                   {"power_iterations", s.solver.power_iterations},
-                                  {"seed", s.solver.seed}}},
+                                  {"seed", s.solver.seed},
+                                  {"precision", text_of(s.solver.precision)}}},
                       {"window", s.windows.window},
                       {"hop", s.windows.hop ? s.windows.hop : s.windows.window},
                       {"taper", s.windows.taper == Taper::automatic     ? "auto"

@@ -39,7 +39,7 @@ bool signal_input_requested(const CLI::App& sub, const SignalOptionText& text, c
 
 // Turns the option text into settings. Throws Error(usage) (hop 0, window < 1, …).
 // The solver settings come from the options --solver, --rank, --oversample,
-// --power-iters and --seed of `app` when it declares them (the image options
+// --power-iters, --seed and --precision of `app` when it declares them (the image options
 // do), else the solver defaults.
 SignalStudySettings signal_settings(const SignalOptionText& text, const CLI::App* app = nullptr);
 

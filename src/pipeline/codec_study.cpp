@@ -13,7 +13,6 @@
 #include "measure/image_metrics.hpp"
 #include "measure/ssim.hpp"
 #include "report/svg.hpp"
-#include "solve/operator.hpp"
 
 namespace pcasweep {
 
@@ -83,8 +82,7 @@ SavedBasis fit_basis(const std::vector<std::string>& inputs, const ImageStudySet
   if (transform == BasisTransform::dct) {
     saved.basis = dct_basis_for(X, settings.patch, saved.channels);
   } else {
-    DenseOperator op(X);
-    saved.basis = solve(op, settings.solver);
+    saved.basis = solve(X, settings.solver);
   }
   return saved;
 }

@@ -96,6 +96,7 @@ nlohmann::json solver_json(const Basis& b) {
     if (b.scheme == "block Krylov") j["krylov_width"] = b.krylov_width;
     else j["power_iterations"] = (b.passes - 2) / 2;
     j["seed"] = b.seed;
+    j["precision"] = b.precision;
     j["converged"] = b.converged;
     j["last_relative_change"] = finite_or_null(b.last_relative_change);
     j["subspace_residual"] = b.subspace_residual;
@@ -118,10 +119,10 @@ std::string solver_lines(const Basis& b) {
     << " components computed\n";
   if (b.solver == "randomized") {
     o << "randomized, " << b.scheme << ": " << b.sample_size << " test vectors (" << b.oversample
-      << " oversampling), " << b.passes << " passes over the data ("
+      << " oversampling), " << b.passes << " products with the data ("
       << (b.scheme == "block Krylov" ? "Krylov space of " + std::to_string(b.krylov_width) + " vectors"
                                      : std::to_string((b.passes - 2) / 2) + " power iterations")
-      << "), seed " << b.seed << ", " << (b.converged ? "converged" : "stopped at the pass cap before converging")
+      << "), seed " << b.seed << ", " << b.precision << "-precision products, " << (b.converged ? "converged" : "stopped at the pass cap before converging")
       << " (last move " << format_real(b.last_relative_change, 2) << " of an eigenvalue)\n";
     o << "variance outside the sampled subspace = "
       << (b.subspace_residual <= b.residual_floor ? "<= " + format_real(b.residual_floor, 3) + " (rounding floor)"

@@ -11,7 +11,6 @@
 #include "measure/ssim.hpp"
 #include "observe/raster.hpp"
 #include "reconstruct/reconstruct.hpp"
-#include "solve/operator.hpp"
 
 namespace pcasweep {
 
@@ -32,8 +31,7 @@ ImageAnalysis analyze_sources(std::vector<std::string> inputs, std::vector<Image
   for (const auto& s : a.sources) a.alpha_dropped = a.alpha_dropped || s.alpha_dropped;
   a.layout = std::move(layout);
   a.X = a.layout->observe(a.sources);
-  DenseOperator op(a.X);
-  a.basis = solve(op, solver);
+  a.basis = solve(a.X, solver);
   return a;
 }
 

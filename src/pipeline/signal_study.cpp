@@ -10,7 +10,6 @@
 #include "pipeline/image_study.hpp"  // check_ks, spectrum_table, output_stem
 #include "reconstruct/reconstruct.hpp"
 #include "report/excerpt_plot.hpp"
-#include "solve/operator.hpp"
 
 namespace pcasweep {
 
@@ -29,8 +28,7 @@ SignalAnalysis analyze_recording(const std::string& name, Signal signal, const W
                       " frames); use a shorter --window or --hop");
   }
   a.X = a.layout->observe(a.signal.samples);
-  DenseOperator op(a.X);
-  a.basis = solve(op, solver);
+  a.basis = solve(a.X, solver);
   return a;
 }
 

@@ -23,6 +23,7 @@ struct Basis {
   Eigen::Index observation_count = 0;  // N
   std::string solver;            // "exact" or "randomized"
   std::string solver_reason;     // why this solver ran, in words
+  std::string precision = "double";  // of the products with the data: "double" or "single"
 
   // Filled by the randomized solver (solve/randomized.hpp); left as below by exact.
   std::string scheme;            // "block Krylov" (adaptive default) or "power iterations" (fixed q)

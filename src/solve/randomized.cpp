@@ -91,17 +91,30 @@ namespace {
 // k-th Ritz value is at least this fraction of the first (σ_k >= 1e-3·σ₁);
 // below it, one more product and an SVD resolve the small σ (block_krylov).
 constexpr double kGramRitzFloor = 1e-6;
+// Block Krylov's change floor with double products (fraction of the total variance).
+constexpr double kChangeFloor = 1e-9;
+
+// Relative rounding of a sum of squared products against ‖A_c‖²_F. Double
+// products: Higham's worst case γ_n = n·u/(1 − n·u) (Accuracy and Stability
+// of Numerical Algorithms, §3.1), n = N + d. Single products: that worst case
+// (1.3e-3 at 20000×1024) is far above what happens, because the products'
+// rounding errors take both signs and cancel in the sum; measured with
+// OpenBLAS's sgemm against dgemm on the benchmark matrices, ‖A·W‖²_F moved by
+// 3e-10 to 1.6e-9 of itself (docs/performance.md, "Single precision"). The
+// floor is single precision's u itself, 2⁻²⁴ ≈ 6e-8: 40× that margin.
+double rounding_level(const CenteredOperator& op) {
+  const double n = double(op.rows() + op.cols()), u = op.unit_roundoff();
+  if (u > std::numeric_limits<double>::epsilon()) return u;
+  return n * u / (1.0 - n * u);
+}
 
 // The variance the captured subspace misses and what is known of its rounding:
 // ‖A_c‖²_F − ‖P·A_c‖²_F where `captured` = ‖P·A_c‖²_F. Both terms carry
-// relative rounding of order γ_n = n·u/(1 − n·u) (Higham, Accuracy and
-// Stability of Numerical Algorithms, §3.1), n = N + d, so a difference below
-// γ_n·‖A_c‖²_F is noise: it is clamped to that floor.
-void set_residual(Basis& basis, double frobenius2, double captured, Eigen::Index n, Eigen::Index d) {
-  const double denom = double(n - 1);
-  const double u = std::numeric_limits<double>::epsilon() / 2.0;
-  const double nu = double(n + d) * u;
-  const double floor = nu / (1.0 - nu) * frobenius2;
+// relative rounding of order rounding_level(op), so a difference below
+// that fraction of ‖A_c‖²_F is noise: it is clamped to that floor.
+void set_residual(Basis& basis, double frobenius2, double captured, const CenteredOperator& op) {
+  const double denom = double(op.rows() - 1);
+  const double floor = rounding_level(op) * frobenius2;
   basis.residual_floor = floor / denom;
   basis.subspace_residual = std::max(frobenius2 - captured, floor) / denom;
 }
@@ -172,7 +185,7 @@ void subspace_iteration(const CenteredOperator& op, Eigen::Index k, Eigen::Index
   basis.passes = passes;
   basis.converged = true;
   basis.last_relative_change = change;
-  set_residual(basis, frobenius2, sigma2.sum(), op.rows(), op.cols());
+  set_residual(basis, frobenius2, sigma2.sum(), op);
   const bool complete = l == std::min(op.rows(), op.cols());
   basis.optimality_gap_estimate = complete ? 0.0 : extrapolated_gap(errors, frobenius2);
 }
@@ -204,7 +217,8 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   const Eigen::Index space = right_side ? d : n;
   const auto forward = [&](const Eigen::MatrixXd& x) { return right_side ? op.apply(x) : op.apply_transpose(x); };
   const auto backward = [&](const Eigen::MatrixXd& y) { return right_side ? op.apply_transpose(y) : op.apply(y); };
-  std::vector<Eigen::MatrixXd> ws, zs;  // K's blocks W_b (s×l_b) and Z_b = backward(Y_b) (s×l_b, unprojected)
+  Eigen::MatrixXd krylov;  // s×m, K = [W_0 … W_b], orthonormal columns
+  Eigen::MatrixXd zs;      // s×(m − l_b), [Z_0 … Z_{b−1}] as made (not projected)
   // Observation side only: every Y_b = forward(W_b) (d×l_b), from which the
   // components (A_c's right singular vectors) are formed at the end. The
   // variable side keeps just the newest Y_b: its components lie in span(K).
@@ -213,30 +227,47 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   Eigen::MatrixXd gram;                 // m×m, G
   Eigen::MatrixXd w = gaussian_matrix(space, l, settings.seed);
   orthonormalize(w);
-  int passes = 0;
+  int passes = 0, blocks = 0;
   Eigen::VectorXd theta, previous;  // leading k Ritz values (σ²), this block and the last
   std::vector<double> errors, changes;
   bool converged = false;
-  const double u = std::numeric_limits<double>::epsilon() / 2.0;
-  const double captured_floor = double(n + d) * u * frobenius2;
+  const double level = rounding_level(op);
+  const double captured_floor = level * frobenius2;
   // Changes are measured relative to each eigenvalue, but never relative to
-  // less than kChangeFloor of the total: components that carry almost nothing
+  // less than change_floor of the total: components that carry almost nothing
   // are known only to the Gram matrix's rounding and must not hold the run back.
-  constexpr double kChangeFloor = 1e-9;
+  const double change_floor = std::max(kChangeFloor, level) * frobenius2;
+  // An operator that makes Y_b and Z_b in one sweep (SingleOperator) is
+  // asked for both at once: the last block's Z_b is then made for nothing,
+  // but every sweep costs less than its two products apart.
+  const bool fused = op.fuses_normal_products();
+  Eigen::MatrixXd z_next;  // Z_b of the newest block, once made
   for (;;) {
-    y = forward(w);
-    ++passes;
-    if (!right_side) ys.push_back(y);
-    ws.push_back(std::move(w));
-    // Extend G by the new block's column.
-    const Eigen::Index m_old = gram.rows(), lb = y.cols(), m = m_old + lb;
-    gram.conservativeResize(m, m);
-    Eigen::Index offset = 0;
-    for (const Eigen::MatrixXd& z : zs) {
-      gram.block(offset, m_old, z.cols(), lb).noalias() = z.transpose() * ws.back();
-      offset += z.cols();
+    if (fused) {
+      z_next = right_side ? op.apply_normal(w, y) : op.apply_normal_transpose(w, y);
+      passes += 2;
+    } else {
+      y = forward(w);
+      ++passes;
     }
-    gram.block(m_old, m_old, lb, lb).noalias() = y.transpose() * y;
+    if (!right_side) ys.push_back(y);
+    ++blocks;
+    const Eigen::Index m_old = krylov.cols(), lb = w.cols(), m = m_old + lb;
+    krylov.conservativeResize(space, m);
+    krylov.rightCols(lb) = w;
+    // Extend G by the new block's column: Z_iᵀ·W_b for the earlier blocks.
+    gram.conservativeResize(m, m);
+    if (m_old > 0) gram.block(0, m_old, m_old, lb).noalias() = zs.transpose() * w;
+    auto diagonal = gram.block(m_old, m_old, lb, lb);
+    if (fused) {
+      // Y_bᵀ·Y_b = W_bᵀ·Z_b, symmetrised: s·l² flops instead of N·l².
+      const Eigen::MatrixXd wz = w.transpose() * z_next;
+      diagonal = 0.5 * (wz + wz.transpose());
+    } else {
+      diagonal.setZero();
+      diagonal.selfadjointView<Eigen::Lower>().rankUpdate(y.transpose());  // Y_bᵀ·Y_b
+      diagonal.triangularView<Eigen::StrictlyUpper>() = diagonal.transpose();
+    }
     gram.block(m_old, 0, lb, m_old) = gram.block(0, m_old, m_old, lb).transpose();
     previous = theta;
     theta = symmetric_eigen(gram, false).values.head(std::min(k, m)).cwiseMax(0.0);
@@ -250,7 +281,7 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
       break;
     }
     if (previous.size() == k && theta.size() == k) {
-      const Eigen::ArrayXd scale = theta.array().max(kChangeFloor * frobenius2);
+      const Eigen::ArrayXd scale = theta.array().max(change_floor);
       changes.push_back(((theta - previous).array().abs() / scale).maxCoeff());
       const std::size_t c = changes.size();
       if (changes[c - 1] == 0.0) {
@@ -268,21 +299,25 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
     if (passes + 2 > settings.max_passes) break;
     // Next block: Z_b = backward(Y_b), kept whole for G, then minus its part
     // in span(K), orthonormalised.
-    zs.push_back(backward(y));
-    ++passes;
+    if (!fused) {
+      z_next = backward(y);
+      ++passes;
+    }
+    zs.conservativeResize(space, m);
+    zs.rightCols(lb) = z_next;
     const Eigen::Index width = std::min<Eigen::Index>(lb, space - m);
-    Eigen::MatrixXd z = zs.back().leftCols(width);
-    const auto project_out = [&](Eigen::MatrixXd& block) {
-      for (int round = 0; round < 2; ++round)
-        for (const Eigen::MatrixXd& wi : ws) block.noalias() -= wi * (wi.transpose() * block);
-    };
+    Eigen::MatrixXd z = z_next.leftCols(width);
+    // Block classical Gram–Schmidt, run twice around the orthonormalisation
+    // (BCGS2: Barlow & Smoktunowicz, Numer. Math. 123, 2013): orthogonal to
+    // span(K) to working accuracy.
+    const auto project_out = [&](Eigen::MatrixXd& block) { block.noalias() -= krylov * (krylov.transpose() * block); };
     const Eigen::VectorXd before = z.colwise().norm();
     project_out(z);
     // A column that vanished lies in span(K) already (an invariant subspace was
     // found): replace it by a fresh Gaussian direction, so the block stays full.
     const Eigen::VectorXd after = z.colwise().norm();
     if (!((after.array() > 1e-10 * before.array()).all())) {
-      const Eigen::MatrixXd fresh = gaussian_matrix(space, width, settings.seed + 1 + std::uint64_t(ws.size()));
+      const Eigen::MatrixXd fresh = gaussian_matrix(space, width, settings.seed + 1 + std::uint64_t(blocks));
       for (Eigen::Index j = 0; j < width; ++j)
         if (!(after(j) > 1e-10 * before(j))) z.col(j) = fresh.col(j);
       project_out(z);
@@ -293,19 +328,14 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
     w = std::move(z);
   }
   y.resize(0, 0);
-  zs.clear();
+  zs.resize(0, 0);
   // Rayleigh–Ritz: G = S·Θ·Sᵀ, and the l leading Ritz vectors V_l = K·S_l
   // span the answer.
   const Eigen::Index m = gram.rows(), lr = std::min(l, m);
   const SymmetricEigen eig = symmetric_eigen(gram, true);
   const Eigen::MatrixXd s = eig.vectors.leftCols(lr);
-  Eigen::MatrixXd v_l = Eigen::MatrixXd::Zero(space, lr);
-  Eigen::Index offset = 0;
-  for (const Eigen::MatrixXd& wi : ws) {
-    v_l.noalias() += wi * s.middleRows(offset, wi.cols());
-    offset += wi.cols();
-  }
-  ws.clear();
+  Eigen::MatrixXd v_l = krylov * s;
+  krylov.resize(0, 0);
   Eigen::VectorXd all;  // the l leading σ², decreasing
   Eigen::MatrixXd right;
   const Eigen::VectorXd theta_l = eig.values.head(lr).cwiseMax(0.0);
@@ -326,7 +356,7 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
       ++passes;
     } else {
       y_l = Eigen::MatrixXd::Zero(d, lr);
-      offset = 0;
+      Eigen::Index offset = 0;
       for (const Eigen::MatrixXd& yi : ys) {
         y_l.noalias() += yi * s.middleRows(offset, yi.cols());
         offset += yi.cols();
@@ -351,7 +381,7 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   basis.last_relative_change = changes.empty() ? std::numeric_limits<double>::quiet_NaN() : changes.back();
   // The residual of the l leading Ritz vectors: an l-dimensional subspace, as
   // for the power scheme (‖A_c·K·S_l‖²_F = Σ of the l leading Ritz values).
-  set_residual(basis, frobenius2, all.sum(), n, d);
+  set_residual(basis, frobenius2, all.sum(), op);
   basis.optimality_gap_estimate = errors.back() <= captured_floor ? 0.0 : extrapolated_gap(errors, frobenius2);
 }
 

@@ -38,8 +38,17 @@ CostEstimate estimate_costs(Eigen::Index n, Eigen::Index d, Eigen::Index rank, i
   return c;
 }
 
-Basis solve(const CenteredOperator& op, const SolverSettings& settings) {
-  const Eigen::Index n = op.rows(), d = op.cols(), smallest = std::min(n, d);
+namespace {
+
+struct Plan {
+  SolverChoice choice = SolverChoice::exact;  // exact or randomized, never automatic
+  Eigen::Index rank = 0;
+  std::string reason;
+};
+
+// N×d data: validates the settings and decides which solver runs and why.
+Plan plan_solve(Eigen::Index n, Eigen::Index d, const SolverSettings& settings) {
+  const Eigen::Index smallest = std::min(n, d);
   if (n < 2) throw data_error("need at least 2 observations to estimate a covariance, got " + std::to_string(n));
   const Eigen::Index rank = settings.rank > 0 ? settings.rank : default_rank(n, d);
   if (rank > smallest) {
@@ -77,21 +86,39 @@ Basis solve(const CenteredOperator& op, const SolverSettings& settings) {
              seconds_text(cost.randomized_seconds) + " for rank " + std::to_string(rank) + " (N = " +
              std::to_string(n) + ", d = " + std::to_string(d) + ")";
   }
+  if (choice == SolverChoice::randomized && settings.rank == 0) reason += "; rank " + std::to_string(rank) + " by default";
+  return {choice, rank, reason};
+}
+
+Basis run(const CenteredOperator& op, const Plan& plan, const SolverSettings& settings) {
   Basis basis;
-  if (choice == SolverChoice::exact) {
+  if (plan.choice == SolverChoice::exact) {
     basis = solve_exact(op);
   } else {
     RandomizedSettings rs;
-    rs.rank = rank;
+    rs.rank = plan.rank;
     rs.oversample = settings.oversample;
     rs.power_iterations = settings.power_iterations;
     rs.seed = settings.seed;
     if (settings.tolerance > 0.0) rs.tolerance = settings.tolerance;
     basis = solve_randomized(op, rs);
-    if (settings.rank == 0) reason += "; rank " + std::to_string(rank) + " by default";
   }
-  basis.solver_reason = reason;
+  basis.solver_reason = plan.reason;
+  basis.precision = op.unit_roundoff() > 0x1p-53 ? "single" : "double";
   return basis;
+}
+
+}  // namespace
+
+Basis solve(const CenteredOperator& op, const SolverSettings& settings) {
+  return run(op, plan_solve(op.rows(), op.cols(), settings), settings);
+}
+
+Basis solve(const Eigen::MatrixXd& X, const SolverSettings& settings) {
+  const Plan plan = plan_solve(X.rows(), X.cols(), settings);
+  if (plan.choice == SolverChoice::randomized && settings.precision == Precision::single_precision)
+    return run(SingleOperator(X), plan, settings);
+  return run(DenseOperator(X), plan, settings);
 }
 
 }  // namespace pcasweep

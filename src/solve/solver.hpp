@@ -4,7 +4,9 @@
 // and returns a Basis whose `solver` and `solver_reason` say which solver ran
 // and why. `exact` returns all d components; other solvers may return fewer
 // (basis.rank() < d), in which case eigenvalues beyond the rank are unknown
-// but basis.total_variance still holds the exact trace.
+// but basis.total_variance still holds the exact trace. Given the observation
+// matrix itself, solve() also picks the operator: single-precision products
+// (SingleOperator) when the randomized solver runs and they were asked for.
 #pragma once
 
 #include <cstdint>
@@ -24,6 +26,9 @@ struct SolverSettings {
   int power_iterations = -1;      // randomized: q; -1 = adaptive default
   std::uint64_t seed = 1;         // randomized: test-matrix seed
   double tolerance = 0.0;         // randomized, adaptive q: stopping tolerance (0: kDefaultTolerance)
+  // randomized, given the matrix: precision of the products with the data
+  // (the exact solver always accumulates its scatter in double).
+  Precision precision = Precision::double_precision;
 };
 
 // Rank a truncated solver computes when SolverSettings::rank is 0.
@@ -65,8 +70,14 @@ Eigen::Index default_rank(Eigen::Index n, Eigen::Index d);
 SolverChoice parse_solver_choice(const std::string& text);
 
 // op: N×d centred data. Returns the basis, with solver and solver_reason
-// saying which ran and why. Throws Error(data) for N < 2, Error(usage) for a
-// rank above min(N, d) or an exact solve too large for memory.
+// saying which ran and why (basis.precision: op's). Throws Error(data) for
+// N < 2, Error(usage) for a rank above min(N, d) or an exact solve too large
+// for memory.
 Basis solve(const CenteredOperator& op, const SolverSettings& settings);
+
+// X: N×d observations (not centred). As above over DenseOperator(X), or over
+// SingleOperator(X) (a centred float32 copy, N·d·4 bytes more) when the
+// randomized solver runs and settings.precision is single.
+Basis solve(const Eigen::MatrixXd& X, const SolverSettings& settings);
 
 }  // namespace pcasweep
