@@ -8,8 +8,8 @@
 //       times building the operator and solve() on the N×d float64 matrix
 //       (median of R runs) and, with --components, writes the d×k components
 //       as float64 .npy. With --precision single the matrix is read as
-//       float32 before each run (untimed) and handed to a SingleOperator, so
-//       peak RSS is the float32 data plus the solver's working space.
+//       float32 (the data is then float32: peak RSS is it plus the solver's
+//       working space) and every run builds a SingleOperator over it.
 //   gemm --n N --d D --l L [--repeat R]
 //       rates of the two tall-skinny products of the randomized solver
 //       (N×d by d×l and its transpose product), double and float.
@@ -163,9 +163,9 @@ int mode_solve(const Args& a) {
   if (a.positional.empty()) throw usage_error("solve: give MATRIX.npy");
   const Precision precision = parse_precision(a.get("precision", "double"));
   const bool single = precision == Precision::single_precision;
-  // Double: read once, every run builds its DenseOperator over it. Single:
-  // every run reads its own float32 copy, which the operator takes over.
   const Eigen::MatrixXd X = single ? Eigen::MatrixXd() : read_npy<double>(a.positional[0]);
+  const Eigen::MatrixXf xf = single ? read_npy<float>(a.positional[0]) : Eigen::MatrixXf();
+  const Eigen::Index rows = single ? xf.rows() : X.rows(), cols = single ? xf.cols() : X.cols();
   SolverSettings s;
   s.choice = parse_solver_choice(a.get("solver", "randomized"));
   s.rank = std::stol(a.get("k", "16"));
@@ -175,23 +175,15 @@ int mode_solve(const Args& a) {
   s.tolerance = std::stod(a.get("tol", "0"));
   const int repeat = std::stoi(a.get("repeat", "5"));
   Basis basis;
-  Eigen::Index rows = X.rows(), cols = X.cols();
-  std::vector<double> times;
-  for (int run = 0; run < repeat; ++run) {
-    Eigen::MatrixXf xf;
-    if (single) xf = read_npy<float>(a.positional[0]);
-    rows = single ? xf.rows() : rows;
-    cols = single ? xf.cols() : cols;
-    const auto start = Clock::now();
+  const auto times = time_runs(repeat, [&] {
     if (single) {
-      SingleOperator op(std::move(xf));
+      SingleOperator op(xf);
       basis = solve(op, s);
     } else {
       DenseOperator op(X);
       basis = solve(op, s);
     }
-    times.push_back(std::chrono::duration<double>(Clock::now() - start).count());
-  }
+  });
   if (a.named.count("components")) write_npy(a.named.at("components"), basis.components.leftCols(s.rank));
   nlohmann::json j = environment();
   const double l = double(basis.sample_size);

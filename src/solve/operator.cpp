@@ -1,6 +1,7 @@
 #include "solve/operator.hpp"
 
 #include <algorithm>
+#include <cmath>
 #include <omp.h>
 
 #include "core/error.hpp"
@@ -8,19 +9,17 @@
 namespace pcasweep {
 
 namespace {
-// Centres `source` (N×d, double or float) column by column into `target`
-// (N×d float32; may be `source` itself): mean in double, then x − μ rounded
-// to float, then the sum of squares of the rounded column (the data the
-// operator stands for). Each column is read from memory once.
-template <class Source>
-void centre_into(const Source& source, Eigen::MatrixXf& target, Eigen::VectorXd& mean, Eigen::VectorXd& sums) {
-  mean.resize(source.cols());
-  sums.resize(source.cols());
+// Column means and sums of squares about them of X (N×d, any scalar),
+// accumulated in double column by column (contiguous in memory).
+template <class Matrix>
+void column_moments(const Matrix& X, Eigen::VectorXd& mean, Eigen::VectorXd& sums) {
+  mean.resize(X.cols());
+  sums.resize(X.cols());
 #pragma omp parallel for schedule(static)
-  for (Eigen::Index j = 0; j < source.cols(); ++j) {
-    mean(j) = source.col(j).template cast<double>().mean();
-    target.col(j) = (source.col(j).template cast<double>().array() - mean(j)).template cast<float>();
-    sums(j) = target.col(j).template cast<double>().squaredNorm();
+  for (Eigen::Index j = 0; j < X.cols(); ++j) {
+    const auto column = X.col(j).template cast<double>();
+    mean(j) = column.mean();
+    sums(j) = (column.array() - mean(j)).square().sum();
   }
 }
 
@@ -120,53 +119,73 @@ Eigen::VectorXd DenseOperator::column_sums_of_squares() const {
   return s;
 }
 
-SingleOperator::SingleOperator(const Eigen::MatrixXd& X) : Xc_(X.rows(), X.cols()) { centre_into(X, Xc_, mean_, sums_); }
+SingleOperator::SingleOperator(const Eigen::MatrixXd& X) : owned_(X.cast<float>()), X_(&owned_) {
+  column_moments(X, mean_, sums_);
+}
 
-SingleOperator::SingleOperator(Eigen::MatrixXf&& X) : Xc_(std::move(X)) { centre_into(Xc_, Xc_, mean_, sums_); }
+SingleOperator::SingleOperator(const Eigen::MatrixXf& X) : X_(&X) { column_moments(X, mean_, sums_); }
+
+double SingleOperator::offset_ratio(const Eigen::VectorXd& mean, const Eigen::VectorXd& sums, Eigen::Index n) {
+  const double centred = sums.sum();
+  return std::sqrt((centred + double(n) * mean.squaredNorm()) / centred);
+}
+
+double SingleOperator::unit_roundoff() const { return 0x1p-24 * offset_ratio(mean_, sums_, X_->rows()); }
 
 Eigen::MatrixXd SingleOperator::apply(const Eigen::MatrixXd& omega) const {
-  Eigen::MatrixXf y(Xc_.rows(), omega.cols());
-  y.noalias() = Xc_ * omega.cast<float>();
-  return y.cast<double>();
+  // A_c·Ω = A·Ω − 1·(μᵀΩ): the product in float, the centring term in double.
+  Eigen::MatrixXd y(X_->rows(), omega.cols());
+  y.rowwise() = -(mean_.transpose() * omega);
+  y += (*X_ * omega.cast<float>()).cast<double>();
+  return y;
 }
 
 Eigen::MatrixXd SingleOperator::apply_transpose(const Eigen::MatrixXd& y) const {
-  Eigen::MatrixXf z(Xc_.cols(), y.cols());
-  z.noalias() = Xc_.transpose() * y.cast<float>();
-  return z.cast<double>();
+  // A_cᵀ·Y = AᵀY − μ·(1ᵀY), likewise.
+  Eigen::MatrixXd z = -mean_ * y.colwise().sum();
+  z += (X_->transpose() * y.cast<float>()).cast<double>();
+  return z;
 }
 
 Eigen::MatrixXd SingleOperator::apply_normal(const Eigen::MatrixXd& w, Eigen::MatrixXd& y) const {
-  // Blocks of rows R_b: Y_b = R_b·W, then A_cᵀ·Y = Σ_b R_bᵀ·Y_b, the sum in double.
-  const Eigen::Index n = Xc_.rows(), d = Xc_.cols(), l = w.cols();
+  // Blocks of rows R_b: Y_b = R_b·W − 1·(μᵀW) (centred in double), then
+  // A_cᵀ·Y = Σ_b R_bᵀ·Y_b − μ·(1ᵀY), the sum in double.
+  const Eigen::Index n = X_->rows(), d = X_->cols(), l = w.cols();
   const Eigen::MatrixXf wf = w.cast<float>();
+  const Eigen::RowVectorXd shift = mean_.transpose() * w;
   y.resize(n, l);
-  return sweep((n + kSweepBlock - 1) / kSweepBlock, d, l, [&](Eigen::Index b, Eigen::MatrixXd& z) {
+  Eigen::MatrixXd z = sweep((n + kSweepBlock - 1) / kSweepBlock, d, l, [&](Eigen::Index b, Eigen::MatrixXd& part) {
     const Eigen::Index start = b * kSweepBlock, count = std::min(kSweepBlock, n - start);
-    const auto rows = Xc_.middleRows(start, count);
-    const Eigen::MatrixXf yb = rows * wf;
-    const Eigen::MatrixXf zb = rows.transpose() * yb;
-    y.middleRows(start, count) = yb.cast<double>();
-    z += zb.cast<double>();
+    const auto rows = X_->middleRows(start, count);
+    auto yb = y.middleRows(start, count);
+    yb = (rows * wf).cast<double>();
+    yb.rowwise() -= shift;
+    part += (rows.transpose() * yb.cast<float>()).cast<double>();
   });
+  z.noalias() -= mean_ * y.colwise().sum();
+  return z;
 }
 
 Eigen::MatrixXd SingleOperator::apply_normal_transpose(const Eigen::MatrixXd& w, Eigen::MatrixXd& y) const {
-  // Blocks of columns C_b (contiguous): Y_b = C_bᵀ·W, then A_c·Y = Σ_b C_b·Y_b.
-  const Eigen::Index n = Xc_.rows(), d = Xc_.cols(), l = w.cols();
+  // Blocks of columns C_b (contiguous): Y_b = C_bᵀ·W − μ_b·(1ᵀW), then
+  // A_c·Y = Σ_b C_b·Y_b − 1·(μᵀY).
+  const Eigen::Index n = X_->rows(), d = X_->cols(), l = w.cols();
   const Eigen::MatrixXf wf = w.cast<float>();
+  const Eigen::RowVectorXd total = w.colwise().sum();
   y.resize(d, l);
-  return sweep((d + kSweepBlock - 1) / kSweepBlock, n, l, [&](Eigen::Index b, Eigen::MatrixXd& z) {
+  Eigen::MatrixXd z = sweep((d + kSweepBlock - 1) / kSweepBlock, n, l, [&](Eigen::Index b, Eigen::MatrixXd& part) {
     const Eigen::Index start = b * kSweepBlock, count = std::min(kSweepBlock, d - start);
-    const auto cols = Xc_.middleCols(start, count);
-    const Eigen::MatrixXf yb = cols.transpose() * wf;
-    const Eigen::MatrixXf zb = cols * yb;
-    y.middleRows(start, count) = yb.cast<double>();
-    z += zb.cast<double>();
+    const auto cols = X_->middleCols(start, count);
+    auto yb = y.middleRows(start, count);
+    yb = (cols.transpose() * wf).cast<double>();
+    yb.noalias() -= mean_.segment(start, count) * total;
+    part += (cols * yb.cast<float>()).cast<double>();
   });
+  z.rowwise() -= mean_.transpose() * y;
+  return z;
 }
 
-Eigen::MatrixXd SingleOperator::scatter() const { return blocked_scatter(Xc_, nullptr); }
+Eigen::MatrixXd SingleOperator::scatter() const { return blocked_scatter(*X_, &mean_); }
 
 Precision parse_precision(const std::string& text) {
   if (text == "double") return Precision::double_precision;

@@ -65,29 +65,33 @@ class DenseOperator : public CenteredOperator {
   Eigen::VectorXd mean_;
 };
 
-// The operator over an observation matrix in memory whose products run in
-// single precision (float32 GEMM: about 1.8× the double rate on the reference
-// machine, docs/performance.md). It keeps the centred data as float32, so
-// centring costs no cancellation in the products; the mean, the sums of
-// squares and the scatter are accumulated in double. Entries of a product
-// carry relative rounding of about √d·2⁻²⁴ against ‖row‖·‖column‖.
+// The operator over float32 observations whose products run in single
+// precision (sgemm: about 1.8× dgemm's rate on the reference machine,
+// docs/performance.md). The mean is removed implicitly, as in DenseOperator;
+// the mean, the sums of squares, the scatter and the centring terms are
+// accumulated in double. Products carry rounding of about √(inner length)·2⁻²⁴
+// against ‖row‖·‖column‖ of the uncentred data, so data whose mean dwarfs its
+// spread lose accuracy in proportion: unit_roundoff() reports
+// 2⁻²⁴·‖A‖_F/‖A_c‖_F, the rounding relative to the centred data.
 class SingleOperator : public CenteredOperator {
  public:
-  // X: N×d, N >= 1. Keeps a centred float32 copy (N·d·4 bytes); X need not
-  // outlive the operator.
+  // X: N×d, N >= 1. Keeps a float32 copy (N·d·4 bytes, exact for samples of
+  // up to 24 bits); X need not outlive the operator.
   explicit SingleOperator(const Eigen::MatrixXd& X);
-  // X: N×d float32 observations, N >= 1, taken over and centred in place:
-  // no second copy of the data.
-  explicit SingleOperator(Eigen::MatrixXf&& X);
+  // X: N×d float32 observations, N >= 1, kept by reference (no copy): it
+  // must outlive the operator.
+  explicit SingleOperator(const Eigen::MatrixXf& X);
+  SingleOperator(const SingleOperator&) = delete;
+  SingleOperator& operator=(const SingleOperator&) = delete;
 
-  Eigen::Index rows() const override { return Xc_.rows(); }
-  Eigen::Index cols() const override { return Xc_.cols(); }
+  Eigen::Index rows() const override { return X_->rows(); }
+  Eigen::Index cols() const override { return X_->cols(); }
   const Eigen::VectorXd& mean() const override { return mean_; }
   Eigen::MatrixXd apply(const Eigen::MatrixXd& omega) const override;
   Eigen::MatrixXd apply_transpose(const Eigen::MatrixXd& y) const override;
   Eigen::MatrixXd scatter() const override;
   Eigen::VectorXd column_sums_of_squares() const override { return sums_; }
-  double unit_roundoff() const override { return 0x1p-24; }
+  double unit_roundoff() const override;
   // One sweep: each block of rows (columns for the transpose) makes both of
   // its products while it is in cache. 20000×1024 by 1024×74 on the
   // reference machine: 0.019 s against 0.026 s for two sgemm calls; in double
@@ -97,10 +101,15 @@ class SingleOperator : public CenteredOperator {
   Eigen::MatrixXd apply_normal_transpose(const Eigen::MatrixXd& w, Eigen::MatrixXd& y) const override;
   bool fuses_normal_products() const override { return true; }
 
+  // ‖A‖_F/‖A_c‖_F of the N×d data X: how much larger the uncentred data is
+  // than its spread (1 for centred data; infinite when A_c = 0). Returns a scalar.
+  static double offset_ratio(const Eigen::VectorXd& mean, const Eigen::VectorXd& sums, Eigen::Index n);
+
  private:
-  Eigen::MatrixXf Xc_;     // N×d, centred
-  Eigen::VectorXd mean_;   // d
-  Eigen::VectorXd sums_;   // d, Σ (x − μ)² accumulated in double
+  Eigen::MatrixXf owned_;        // the copy, when made from double observations
+  const Eigen::MatrixXf* X_;     // N×d, not centred: owned_ or the caller's
+  Eigen::VectorXd mean_;         // d
+  Eigen::VectorXd sums_;         // d, Σ (x − μ)² accumulated in double
 };
 
 // Precision of the products a solver asks of the data.

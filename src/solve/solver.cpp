@@ -115,10 +115,19 @@ Basis solve(const CenteredOperator& op, const SolverSettings& settings) {
 }
 
 Basis solve(const Eigen::MatrixXd& X, const SolverSettings& settings) {
-  const Plan plan = plan_solve(X.rows(), X.cols(), settings);
-  if (plan.choice == SolverChoice::randomized && settings.precision == Precision::single_precision)
-    return run(SingleOperator(X), plan, settings);
-  return run(DenseOperator(X), plan, settings);
+  Plan plan = plan_solve(X.rows(), X.cols(), settings);
+  const DenseOperator dense(X);
+  if (plan.choice == SolverChoice::randomized && settings.precision == Precision::single_precision) {
+    const double ratio = SingleOperator::offset_ratio(dense.mean(), dense.column_sums_of_squares(), X.rows());
+    if (ratio <= kSingleOffsetLimit) return run(SingleOperator(X), plan, settings);
+    char buf[256];
+    std::snprintf(buf, sizeof buf,
+                  "; double-precision products although single was asked: the data's mean makes it %.3g times "
+                  "its spread (||A||_F/||A_c||_F > %g), a factor float32 products would lose in accuracy",
+                  ratio, kSingleOffsetLimit);
+    plan.reason += buf;
+  }
+  return run(dense, plan, settings);
 }
 
 }  // namespace pcasweep

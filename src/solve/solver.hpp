@@ -51,6 +51,12 @@ inline constexpr double kCrossoverMargin = 0.5;
 // spectrum). Measured cost of that choice at rank 32: exact 0.31 s against
 // randomized 0.16 s at N = 20000, d = 1024; 0.18 against 0.02 s at N = 2000.
 inline constexpr Eigen::Index kAlwaysExactDimension = 1024;
+// solve(X, …) with single precision asked for keeps double when the data's
+// mean makes them more than this many times their spread (‖A‖_F/‖A_c‖_F):
+// single products lose that factor of accuracy, and beyond 16 their rounding
+// (16·2⁻²⁴ ≈ 1e-6 of the centred data) would reach the default tolerance.
+// Image data sit near 1.5–4 (8- and 16-bit samples with the mean mid-range).
+inline constexpr double kSingleOffsetLimit = 16.0;
 // The exact solver refuses when its d×d matrices would need more than this.
 inline constexpr double kExactMemoryLimit = 4.0 * 1073741824.0;
 
@@ -76,8 +82,9 @@ SolverChoice parse_solver_choice(const std::string& text);
 Basis solve(const CenteredOperator& op, const SolverSettings& settings);
 
 // X: N×d observations (not centred). As above over DenseOperator(X), or over
-// SingleOperator(X) (a centred float32 copy, N·d·4 bytes more) when the
-// randomized solver runs and settings.precision is single.
+// SingleOperator(X) (a float32 copy, N·d·4 bytes more) when the randomized
+// solver runs, settings.precision is single and the data's offset allows it
+// (kSingleOffsetLimit; otherwise solver_reason says why double ran).
 Basis solve(const Eigen::MatrixXd& X, const SolverSettings& settings);
 
 }  // namespace pcasweep

@@ -238,3 +238,28 @@ TEST_CASE("randomized: wide data (N < d) keeps the accuracy of tall data") {
   CHECK(projection_error(wc, bw.components) <= (1.0 + 1e-3) * optimal);
   CHECK(bw.converged);
 }
+
+TEST_CASE("solve: single precision asked for on data whose mean dwarfs its spread runs in double, and says why") {
+  // ‖A‖_F/‖A_c‖_F for a column offset c and centred spread s per entry is
+  // √(1 + c²/s²) (Pythagoras, common practice): offset 1e4 on spread ~1 gives
+  // ~1e4, far above kSingleOffsetLimit, where float32 products would round at
+  // 1e4·2⁻²⁴ ≈ 6e-4 of the centred data.
+  const Eigen::VectorXd s = Eigen::VectorXd::LinSpaced(10, 30.0, 3.0);
+  Eigen::MatrixXd a = with_spectrum(400, 60, s, 21);
+  a.array() += 1e4;
+  SolverSettings settings;
+  settings.choice = SolverChoice::randomized;
+  settings.rank = 4;
+  settings.precision = Precision::single_precision;
+  const Basis guarded = solve(a, settings);
+  CHECK(guarded.precision == "double");
+  CHECK(guarded.solver_reason.find("although single was asked") != std::string::npos);
+  // The same data centred (ratio 1) run in single; with with_spectrum's own
+  // column offsets of 10..20 (about 40 times this spread) they too stay in double.
+  const Eigen::MatrixXd offset = with_spectrum(400, 60, s, 21);
+  CHECK(solve(centred(offset), settings).precision == "single");
+  CHECK(solve(offset, settings).precision == "double");
+  // Exact ignores the request: its scatter is accumulated in double.
+  settings.choice = SolverChoice::exact;
+  CHECK(solve(a, settings).precision == "double");
+}
