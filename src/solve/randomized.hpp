@@ -16,10 +16,14 @@
 //    the last two, is below `tolerance`), when the space holds all of A_c, or
 //    at `max_passes`. docs/performance.md gives the measurements behind it.
 // A sample as wide as min(N, d) is exact in two passes and stops there.
-// Cost: passes·2·N·d·l flops plus, for block Krylov, O((N + d)·m·l) for the
-// Gram matrix and projections (m = Krylov width); memory: the data plus
-// O((N + d)·l) for the power scheme, O((N + d)·m) for block Krylov
-// (m <= l·(max_passes + 1)/2).
+// Products go through the operator in its own precision (double, or float32
+// for SingleOperator, whose paired products block Krylov then asks for in one
+// sweep); everything else is double, and the noise floors scale with the
+// operator's unit_roundoff().
+// Cost: passes·2·N·d·l flops plus, for block Krylov, O(s·m·l + N·l²) for the
+// Gram matrix and projections (m = Krylov width, s = min(N, d)); memory: the
+// data plus O((N + d)·l) for the power scheme; for block Krylov O(N·l + d·m)
+// when d <= N and O(N·m + d·m) otherwise (m <= l·(max_passes + 1)/2).
 #pragma once
 
 #include <cstdint>
