@@ -150,6 +150,10 @@ TEST_CASE("cli: bad input gives one line on stderr, the right exit code, and no 
   }
   SUBCASE("patch 0") { check_refused(tmp, "sweep " + quoted(good) + o + " --patch 0", 2, "--patch", out); }
   SUBCASE("unknown option") { check_refused(tmp, "sweep " + quoted(good) + o + " --bogus-option", 2, "--bogus-option", out); }
+  SUBCASE("unknown product precision") {
+    check_refused(tmp, "sweep " + quoted(good) + o + " --precision half", 2, "--precision", out);
+    check_refused(tmp, "spectrum " + quoted(good) + " --precision half", 2, "--precision", out);
+  }
   SUBCASE("unknown subcommand") { check_refused(tmp, "frobnicate " + quoted(good), 2, "", out); }
   SUBCASE("spectrum of a corrupt file") { check_refused(tmp, "spectrum " + quoted(noise), 1, noise, out); }
   SUBCASE("spectrum with a patch larger than the image") {

@@ -19,6 +19,11 @@ Checks:
   4. components/: the leading 16 components written as PNG images (mid-gray = 0).
   5. bad input: one file of another size -> exit 1 naming that file; one image only ->
      exit 2; k above min(N, d) -> exit 2; bands with a colour image -> exit 1 naming it.
+  6. --solver randomized --k 20 --precision single (float32 products; N = 200 < d = 625, so
+     the fused A_c·A_cᵀ sweeps cross a 512-column block and a partial one): the leading 20
+     eigenvalues equal sklearn's to 1e-4 relative (the target the double default meets);
+     summary.json's solver block says "precision": "single" (and "double" for the default
+     run of check 2); the console says so; --precision half -> exit 2, no output folder.
 """
 import csv
 import json
@@ -115,6 +120,30 @@ with open(rgb, "wb") as f:
     f.write(b"P6\n25 25\n255\n" + bytes(25 * 25 * 3))
 r = run(["spectrum", "--layout", "bands", paths[0], paths[1], rgb])
 check(r.returncode == 1 and "rgb.ppm" in r.stderr, "bands with a colour image -> exit 1 naming it: %d %s" % (r.returncode, r.stderr.strip()))
+
+# 6. randomized with single-precision (float32) products
+default_summary = os.path.join(tmp, "randomized", "summary.json")
+if os.path.exists(default_summary):
+    p = json.load(open(default_summary))["solver"].get("precision")
+    check(p == "double", "summary.json of the default randomized run says precision double (got %s)" % p)
+out = os.path.join(tmp, "single")
+from refcommon import sweep_extra_args  # noqa: E402  (--no-rd: the rate-distortion study is not looked at here)
+r = run(["sweep", "--layout", "whole", "--solver", "randomized", "--k", "20", "--precision", "single", "--out", out]
+        + sweep_extra_args(PCASWEEP) + paths)
+check(r.returncode == 0, "randomized --precision single sweep runs (exit %d) %s" % (r.returncode, r.stderr.strip()))
+if r.returncode == 0:
+    ev = read_spectrum(os.path.join(out, "spectrum.csv"))
+    check(len(ev) == 20, "single: randomized returns 20 eigenvalues (got %d)" % len(ev))
+    rel = np.max(np.abs(ev[:20] - reference[:20]) / reference[:20])
+    print("randomized --precision single vs sklearn full, leading 20: max relative difference %.3g" % rel)
+    check(rel <= 1e-4, "single: leading 20 eigenvalues = sklearn PCA(svd_solver='full') to 1e-4 (got %.3g)" % rel)
+    s = json.load(open(os.path.join(out, "summary.json")))["solver"]
+    check(s.get("precision") == "single" and s.get("name") == "randomized",
+          "single: summary.json solver block says randomized, precision single (got %s, %s)" % (s.get("name"), s.get("precision")))
+    check("single-precision products" in r.stdout, "single: the console names single-precision products")
+r = run(["sweep", "--layout", "whole", "--precision", "half", "--out", os.path.join(tmp, "never-half")] + paths[:10])
+check(r.returncode == 2 and "--precision" in r.stderr and not os.path.exists(os.path.join(tmp, "never-half")),
+      "--precision half -> exit 2 naming the option, no output folder: %d %s" % (r.returncode, r.stderr.strip()))
 
 if failures:
     print("FAILED: %d check(s)" % len(failures))
