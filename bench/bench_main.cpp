@@ -199,6 +199,9 @@ int mode_solve(const Args& a) {
   j["passes"] = basis.passes;
   j["sample_size"] = basis.sample_size;
   j["converged"] = basis.converged;
+  // Whether float32 rounding leaves the rank-k error near optimal; solve(X)
+  // (the CLI) would re-solve in double when it does not.
+  j["precision_suffices"] = precision_suffices(basis, single ? SingleOperator(xf).unit_roundoff() : 0x1p-53);
   j["last_relative_change"] = basis.last_relative_change;
   j["product_flops"] = basis.solver == "randomized" ? basis.passes * 2.0 * double(rows) * double(cols) * l
                                                     : double(rows) * double(cols) * double(cols);

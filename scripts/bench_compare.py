@@ -123,7 +123,10 @@ for decay, n, d, ks in cases:
                 e = rel_error(a, np.load(comp), opt_err)
                 t = j["seconds_median"]
                 floor = 2 * 2 * n * d * l / (rate[precision] * 1e9)
-                rows.append((name, k, "ours randomized (%s, %s, %d passes)" % (j["gemm"], precision, j["passes"]), t,
+                label = "ours randomized (%s, %s, %d passes)" % (j["gemm"], precision, j["passes"])
+                if not j.get("precision_suffices", True):
+                    label += " [beyond float32: solve(X) and the CLI re-solve in double]"
+                rows.append((name, k, label, t,
                              j["product_flops"] / t / 1e9, e, t_sk / t, t / floor, j["peak_rss_kb"],
                              e <= e_sk + 0.001))
                 print("  k=%d ours %s %s %.3f s err %.6f, sklearn %.3f s err %.6f"

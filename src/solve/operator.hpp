@@ -81,6 +81,7 @@ class SingleOperator : public CenteredOperator {
   // X: N×d float32 observations, N >= 1, kept by reference (no copy): it
   // must outlive the operator.
   explicit SingleOperator(const Eigen::MatrixXf& X);
+  SingleOperator(Eigen::MatrixXf&&) = delete;  // a temporary would not outlive the operator
   SingleOperator(const SingleOperator&) = delete;
   SingleOperator& operator=(const SingleOperator&) = delete;
 

@@ -100,8 +100,9 @@ constexpr double kChangeFloor = 1e-9;
 // (1.3e-3 at 20000×1024) is far above what happens, because the products'
 // rounding errors take both signs and cancel in the sum; measured with
 // OpenBLAS's sgemm against dgemm on the benchmark matrices, ‖A·W‖²_F moved by
-// 3e-10 to 1.6e-9 of itself (docs/performance.md, "Single precision"). The
-// floor is single precision's u itself, 2⁻²⁴ ≈ 6e-8: 40× that margin.
+// 3e-10 to 1.6e-9 of itself (docs/performance.md, "Precision"). The floor is
+// the operator's unit_roundoff() itself: 2⁻²⁴ ≈ 6e-8 for centred data, about
+// 40× that margin, and more for data whose mean inflates the rounding.
 double rounding_level(const CenteredOperator& op) {
   const double n = double(op.rows() + op.cols()), u = op.unit_roundoff();
   if (u > std::numeric_limits<double>::epsilon()) return u;
@@ -195,16 +196,17 @@ void subspace_iteration(const CenteredOperator& op, Eigen::Index k, Eigen::Index
 // decomposition", NeurIPS 2015), written here for the variable side (the
 // observation side swaps A_c and A_cᵀ, see below). Blocks W_0 = orth(Ω),
 // W_{b+1} = orth(Z_b minus its part in span(W_0..W_b)) with Z_b = A_cᵀ·A_c·W_b
-// (projected out twice, "twice is enough"), so K = [W_0 … W_b] (d×m) is
-// orthonormal. After each block the Rayleigh–Ritz values of A_c on span(K) are
-// the eigenvalues of the Gram matrix G = KᵀA_cᵀA_cK (m×m, m = Σ block widths),
-// built without another look at the data: G_ib = Y_iᵀ·Y_b = Z_iᵀ·W_b for the
-// earlier blocks i < b (their Z_i were needed anyway to grow K; d×l_i·l_b
-// flops instead of N×l_i·l_b) and G_bb = Y_bᵀ·Y_b from the block's own product
-// Y_b = A_c·W_b. Two passes per block, and convergence governed by the square
-// root of the spectral gap instead of the gap itself: on the slowly decaying
-// spectra measured in docs/performance.md this needs about half the passes of
-// the power scheme for far better accuracy.
+// (BCGS2), so K = [W_0 … W_b] (d×m) is orthonormal. After each block the
+// Rayleigh–Ritz values of A_c on span(K) are the eigenvalues of the Gram
+// matrix G = KᵀA_cᵀA_cK (m×m, m = Σ block widths), built without another look
+// at the data: G_ib = Y_iᵀ·Y_b = Z_iᵀ·W_b for the earlier blocks i < b (their
+// Z_i were needed anyway to grow K; d×l_i·l_b flops instead of N×l_i·l_b) and
+// G_bb = Y_bᵀ·Y_b from the block's own product Y_b = A_c·W_b (W_bᵀ·Z_b when
+// the operator made Z_b in the same sweep). Two products per block, and
+// convergence governed by the square root of the spectral gap instead of the
+// gap itself: on the slowly decaying spectra measured in docs/performance.md
+// this needs about half the products of the power scheme for far better
+// accuracy.
 void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, const RandomizedSettings& settings,
                   double frobenius2, Basis& basis) {
   const Eigen::Index n = op.rows(), d = op.cols();
@@ -234,8 +236,8 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   const double level = rounding_level(op);
   const double captured_floor = level * frobenius2;
   // Changes are measured relative to each eigenvalue, but never relative to
-  // less than change_floor of the total: components that carry almost nothing
-  // are known only to the Gram matrix's rounding and must not hold the run back.
+  // less than change_floor (a fraction of the total): components that carry
+  // almost nothing are known only to G's rounding and must not hold the run back.
   const double change_floor = std::max(kChangeFloor, level) * frobenius2;
   // An operator that makes Y_b and Z_b in one sweep (SingleOperator) is
   // asked for both at once: the last block's Z_b is then made for nothing,
@@ -334,15 +336,17 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   const Eigen::Index m = gram.rows(), lr = std::min(l, m);
   const SymmetricEigen eig = symmetric_eigen(gram, true);
   const Eigen::MatrixXd s = eig.vectors.leftCols(lr);
-  Eigen::MatrixXd v_l = krylov * s;
+  const Eigen::MatrixXd v_l = krylov * s;
   krylov.resize(0, 0);
   Eigen::VectorXd all;  // the l leading σ², decreasing
   Eigen::MatrixXd right;
   const Eigen::VectorXd theta_l = eig.values.head(lr).cwiseMax(0.0);
   if (right_side && theta_l(k - 1) >= kGramRitzFloor * theta_l(0)) {
-    // G's rounding is of order u·σ₁² (as the exact path's covariance), so Θ
-    // holds σ_k² to about m·u·σ₁²/σ_k² <= 3e-8 relative here: the Ritz pairs
-    // are the answer.
+    // G's rounding is of order u·σ₁² (as the exact path's covariance), so in
+    // double Θ holds σ_k² to about m·u·σ₁²/σ_k² <= 3e-8 relative here: the
+    // Ritz pairs are the answer. (With single-precision products u is the
+    // operator's, 2⁻²⁴ or more: that is the single path's bound, see
+    // docs/performance.md, "Precision".)
     all = theta_l;
     right = v_l.leftCols(k);
   } else {

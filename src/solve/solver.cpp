@@ -114,17 +114,32 @@ Basis solve(const CenteredOperator& op, const SolverSettings& settings) {
   return run(op, plan_solve(op.rows(), op.cols(), settings), settings);
 }
 
+bool precision_suffices(const Basis& basis, double unit_roundoff) {
+  if (unit_roundoff <= 0x1p-53) return true;
+  return variance_beyond_rank(basis) >= kSingleTailMargin * unit_roundoff * basis.total_variance;
+}
+
 Basis solve(const Eigen::MatrixXd& X, const SolverSettings& settings) {
   Plan plan = plan_solve(X.rows(), X.cols(), settings);
   const DenseOperator dense(X);
   if (plan.choice == SolverChoice::randomized && settings.precision == Precision::single_precision) {
     const double ratio = SingleOperator::offset_ratio(dense.mean(), dense.column_sums_of_squares(), X.rows());
-    if (ratio <= kSingleOffsetLimit) return run(SingleOperator(X), plan, settings);
-    char buf[256];
-    std::snprintf(buf, sizeof buf,
-                  "; double-precision products although single was asked: the data's mean makes it %.3g times "
-                  "its spread (||A||_F/||A_c||_F > %g), a factor float32 products would lose in accuracy",
-                  ratio, kSingleOffsetLimit);
+    char buf[320];
+    if (ratio <= kSingleOffsetLimit) {
+      const SingleOperator single(X);
+      Basis basis = run(single, plan, settings);
+      if (precision_suffices(basis, single.unit_roundoff())) return basis;
+      std::snprintf(buf, sizeof buf,
+                    "; double-precision products after a single-precision solve: the variance beyond rank %ld "
+                    "(%.2g of the total) is below what float32 products resolve (%g times their rounding, %.2g)",
+                    long(plan.rank), variance_beyond_rank(basis) / basis.total_variance, kSingleTailMargin,
+                    single.unit_roundoff());
+    } else {
+      std::snprintf(buf, sizeof buf,
+                    "; double-precision products although single was asked: the data's mean makes it %.3g times "
+                    "its spread (||A||_F/||A_c||_F > %g), a factor float32 products would lose in accuracy",
+                    ratio, kSingleOffsetLimit);
+    }
     plan.reason += buf;
   }
   return run(dense, plan, settings);

@@ -57,6 +57,14 @@ inline constexpr Eigen::Index kAlwaysExactDimension = 1024;
 // (16·2⁻²⁴ ≈ 1e-6 of the centred data) would reach the default tolerance.
 // Image data sit near 1.5–4 (8- and 16-bit samples with the mean mid-range).
 inline constexpr double kSingleOffsetLimit = 16.0;
+// A single-precision solve is kept only when the variance beyond its rank is
+// at least this many times its rounding level (the operator's unit_roundoff)
+// of the total: rounding of order u·‖A_c‖²_F moves the rank-k error² by as
+// much, so for an error within 1e-3 of optimal the optimal error² must exceed
+// about 500·u·‖A_c‖²_F. Measured where it fails: fast decay at k = 256
+// (variance beyond 7.6e-12 of the total) gave error/optimum 27 in single
+// (docs/performance.md, "Precision").
+inline constexpr double kSingleTailMargin = 1e3;
 // The exact solver refuses when its d×d matrices would need more than this.
 inline constexpr double kExactMemoryLimit = 4.0 * 1073741824.0;
 
@@ -81,10 +89,17 @@ SolverChoice parse_solver_choice(const std::string& text);
 // for memory.
 Basis solve(const CenteredOperator& op, const SolverSettings& settings);
 
+// basis: from an operator whose products round at unit_roundoff. Returns
+// whether that rounding leaves the rank-r error within about 1e-3 of optimal
+// (kSingleTailMargin): always true for double.
+bool precision_suffices(const Basis& basis, double unit_roundoff);
+
 // X: N×d observations (not centred). As above over DenseOperator(X), or over
 // SingleOperator(X) (a float32 copy, N·d·4 bytes more) when the randomized
-// solver runs, settings.precision is single and the data's offset allows it
-// (kSingleOffsetLimit; otherwise solver_reason says why double ran).
+// solver runs, settings.precision is single and the data allow it: their
+// offset (kSingleOffsetLimit) before the solve, precision_suffices after it
+// (else the solve is run again in double). solver_reason says when double ran
+// although single was asked.
 Basis solve(const Eigen::MatrixXd& X, const SolverSettings& settings);
 
 }  // namespace pcasweep

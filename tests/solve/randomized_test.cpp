@@ -263,3 +263,26 @@ TEST_CASE("solve: single precision asked for on data whose mean dwarfs its sprea
   settings.choice = SolverChoice::exact;
   CHECK(solve(a, settings).precision == "double");
 }
+
+TEST_CASE("solve: a single-precision solve whose tail lies below float32 rounding is redone in double") {
+  // σ_i = e^{−i/5}: the variance beyond rank k is about e^{−2k/5} of the
+  // total (geometric series, common practice): 1.8e-2 at k = 10, far above
+  // kSingleTailMargin·2⁻²⁴ ≈ 6e-5; 6e-6 at k = 30, below it.
+  const Eigen::VectorXd s = (-Eigen::VectorXd::LinSpaced(120, 0.0, 119.0) / 5.0).array().exp();
+  const Eigen::MatrixXd a = centred(with_spectrum(600, 200, s, 31));
+  SolverSettings settings;
+  settings.choice = SolverChoice::randomized;
+  settings.precision = Precision::single_precision;
+  settings.rank = 10;
+  const Basis kept = solve(a, settings);
+  CHECK(kept.precision == "single");
+  CHECK(precision_suffices(kept, SingleOperator(a).unit_roundoff()));
+  settings.rank = 30;
+  const Basis redone = solve(a, settings);
+  CHECK(redone.precision == "double");
+  CHECK(redone.solver_reason.find("after a single-precision solve") != std::string::npos);
+  // Redone in double, the rank-30 error is near optimal again (reference: BDCSVD).
+  const Eigen::BDCSVD<Eigen::MatrixXd> ref(a);
+  const double optimal = std::sqrt(ref.singularValues().tail(ref.singularValues().size() - 30).squaredNorm());
+  CHECK(projection_error(a, redone.components) <= (1.0 + 1e-3) * optimal);
+}
