@@ -10,16 +10,29 @@ namespace pcasweep {
 
 namespace {
 // Column means and sums of squares about them of X (N×d, any scalar),
-// accumulated in double column by column (contiguous in memory).
+// accumulated in double column by column (contiguous in memory), in one pass:
+// Σ(x − x₀) and Σ(x − x₀)² about the column's first entry x₀, which takes
+// the offset out before squaring (the shifted-data algorithm, Chan, Golub &
+// LeVeque, Am. Stat. 37(3), 1983), then μ = x₀ + S₁/N and Σ(x − μ)² = S₂ − S₁²/N.
+// `omp simd` lets the two sums vectorise (it permits reassociating them).
 template <class Matrix>
 void column_moments(const Matrix& X, Eigen::VectorXd& mean, Eigen::VectorXd& sums) {
+  const Eigen::Index n = X.rows();
   mean.resize(X.cols());
   sums.resize(X.cols());
 #pragma omp parallel for schedule(static)
   for (Eigen::Index j = 0; j < X.cols(); ++j) {
-    const auto column = X.col(j).template cast<double>();
-    mean(j) = column.mean();
-    sums(j) = (column.array() - mean(j)).square().sum();
+    const auto* x = X.col(j).data();
+    const double x0 = n > 0 ? double(x[0]) : 0.0;
+    double s1 = 0.0, s2 = 0.0;
+#pragma omp simd reduction(+ : s1, s2)
+    for (Eigen::Index i = 0; i < n; ++i) {
+      const double v = double(x[i]) - x0;
+      s1 += v;
+      s2 += v * v;
+    }
+    mean(j) = x0 + s1 / double(n);
+    sums(j) = std::max(0.0, s2 - s1 * s1 / double(n));
   }
 }
 

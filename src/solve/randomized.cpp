@@ -334,8 +334,8 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
   // Rayleigh–Ritz: G = S·Θ·Sᵀ, and the l leading Ritz vectors V_l = K·S_l
   // span the answer.
   const Eigen::Index m = gram.rows(), lr = std::min(l, m);
-  const SymmetricEigen eig = symmetric_eigen(gram, true);
-  const Eigen::MatrixXd s = eig.vectors.leftCols(lr);
+  const SymmetricEigen eig = leading_symmetric_eigen(gram, lr);
+  const Eigen::MatrixXd& s = eig.vectors;
   const Eigen::MatrixXd v_l = krylov * s;
   krylov.resize(0, 0);
   Eigen::VectorXd all;  // the l leading σ², decreasing
