@@ -48,8 +48,8 @@ SymmetricEigen symmetric_eigen(const Eigen::MatrixXd& s, bool with_vectors) {
 }
 
 SymmetricEigen leading_symmetric_eigen(const Eigen::MatrixXd& s, Eigen::Index count) {
-  const Eigen::Index m = s.rows();
 #ifdef PCASWEEP_HAVE_LAPACK
+  const Eigen::Index m = s.rows();
   // LAPACK dsyevr for eigenvalues il..iu (ascending) and their vectors only.
   Eigen::MatrixXd a = s;
   const int n = int(m), lda = int(m), il = int(m - count + 1), iu = int(m), ldz = int(m);
