@@ -19,6 +19,7 @@ import argparse
 import json
 import os
 import resource
+import shutil
 import subprocess
 import sys
 import tempfile
@@ -149,3 +150,4 @@ for name, k, solver, t, gf, e, sp, fl, rss, ok in rows:
         "%.1f" % fl if fl else "", "%.0f" % (rss / 1024) if rss else ""))
 print()
 print("python peak RSS: %.0f MiB" % (resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024))
+shutil.rmtree(tmp, ignore_errors=True)
