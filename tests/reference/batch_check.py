@@ -32,7 +32,7 @@ import numpy as np
 
 PCASWEEP = sys.argv[1]
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from refcommon import check, failures  # noqa: E402
+from refcommon import check, failures, scratch_dir  # noqa: E402
 
 
 def write_pgm(path, a):
@@ -92,7 +92,7 @@ def low_rank_image(rng, rank, h=64, w=64):
     return unpatch(X, h, w).astype(np.uint8)
 
 
-tmp = tempfile.mkdtemp(prefix="pcasweep-batch-check-")
+tmp = scratch_dir("pcasweep-batch-check-")
 rng = np.random.default_rng(7)
 
 # ---- 1. failure handling -------------------------------------------------------------

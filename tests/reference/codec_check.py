@@ -14,7 +14,6 @@ import os
 import struct
 import subprocess
 import sys
-import tempfile
 import zlib
 
 import numpy as np
@@ -22,7 +21,7 @@ import scipy.fft
 
 PCASWEEP = sys.argv[1]
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from refcommon import check, failures  # noqa: E402
+from refcommon import check, failures, scratch_dir  # noqa: E402
 
 
 def write_png(path, array, bits):
@@ -113,7 +112,7 @@ def read_basis(path):
     return mean, comps, ev, crc_ok
 
 
-tmp = tempfile.mkdtemp(prefix="pcasweep-codec-")
+tmp = scratch_dir("pcasweep-codec-")
 P = lambda name: os.path.join(tmp, name)
 
 # 1. DCT-II basis against scipy.fft.dct(norm="ortho").

@@ -23,13 +23,15 @@ import json
 import os
 import subprocess
 import sys
-import tempfile
 import xml.etree.ElementTree as ET
 
 import numpy as np
 from skimage import data, io
 from skimage.metrics import peak_signal_noise_ratio, structural_similarity
 from sklearn.decomposition import PCA
+
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from refcommon import scratch_dir  # noqa: E402
 
 failures = 0
 
@@ -71,7 +73,7 @@ def reference_rules(ev, total, n, d):
 
 def main():
     binary = sys.argv[1]
-    tmp = tempfile.mkdtemp(prefix="pcasweep-krules-")
+    tmp = scratch_dir("pcasweep-krules-")
     img = data.astronaut()[100:356, 120:376]
     src = os.path.join(tmp, "astro.png")
     io.imsave(src, img, check_contrast=False)

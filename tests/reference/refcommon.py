@@ -4,18 +4,28 @@ Not a check itself (no _check suffix, so ctest does not run it). Only the
 Python standard library and numpy are used here, so that what the checks
 compare against comes from the reference libraries, not from this file.
 """
+import atexit
 import csv
 import math
 import os
+import shutil
 import struct
 import subprocess
 import sys
+import tempfile
 import zlib
 
 import numpy as np
 
 # Failed checks of the running script, in order; check() appends to it.
 failures = []
+
+
+def scratch_dir(prefix):
+    """A new temporary folder, removed when the check exits (pass or fail)."""
+    path = tempfile.mkdtemp(prefix=prefix)
+    atexit.register(shutil.rmtree, path, True)
+    return path
 
 
 def check(ok, what):

@@ -22,14 +22,13 @@ import re
 import shutil
 import subprocess
 import sys
-import tempfile
 
 import numpy as np
 from skimage import data
 
 PCASWEEP = os.path.abspath(sys.argv[1])
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from refcommon import check, failures  # noqa: E402
+from refcommon import check, failures, scratch_dir  # noqa: E402
 
 
 def write_pnm(path, a):
@@ -45,7 +44,7 @@ if not chromium:
     print("FAIL chromium is not installed (scripts/deps installs the Debian package `chromium`)")
     sys.exit(1)
 
-tmp = tempfile.mkdtemp(prefix="pcasweep-report-check-")
+tmp = scratch_dir("pcasweep-report-check-")
 images = os.path.join(tmp, "images")
 os.makedirs(images)
 cam, astro = data.camera(), data.astronaut()
@@ -66,7 +65,7 @@ flags = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-ne
          "--disable-component-update", "--disable-sync", "--no-first-run", "--disable-extensions",
          "--enable-logging=stderr", "--v=0"]
 url = "file://" + report + "#selftest"
-profile = tempfile.mkdtemp(prefix="chromium-profile-")
+profile = scratch_dir("chromium-profile-")
 p = subprocess.run([chromium] + flags + ["--user-data-dir=" + profile, "--virtual-time-budget=20000", "--dump-dom", url],
                    capture_output=True, text=True, timeout=120)
 m = re.search(r'<pre id="selftest-result"[^>]*>(.*?)</pre>', p.stdout, re.S)
@@ -111,7 +110,7 @@ check(worst <= 0.01, f"PSNR shown equals batch.csv to 0.01 dB at every k visited
 artefacts = os.path.join(os.path.dirname(PCASWEEP), "test-artifacts")
 os.makedirs(artefacts, exist_ok=True)
 shot = os.path.join(artefacts, "report.png")
-subprocess.run([chromium] + flags + ["--user-data-dir=" + tempfile.mkdtemp(prefix="chromium-profile-"),
+subprocess.run([chromium] + flags + ["--user-data-dir=" + scratch_dir("chromium-profile-"),
                                      "--window-size=1280,9000", "--hide-scrollbars", "--virtual-time-budget=20000",
                                      "--screenshot=" + shot, "file://" + report],
                capture_output=True, text=True, timeout=120)

@@ -18,13 +18,15 @@ import json
 import os
 import subprocess
 import sys
-import tempfile
 
 import numpy as np
 from scipy import ndimage
 from skimage import data, io
 from skimage.metrics import structural_similarity
 from sklearn.datasets import load_sample_image
+
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from refcommon import scratch_dir  # noqa: E402
 
 TOL = 1e-4
 
@@ -49,7 +51,7 @@ def reference(a, b, data_range):
 def main():
     binary = sys.argv[1]
     rng = np.random.default_rng(20040413)
-    tmp = tempfile.mkdtemp(prefix="pcasweep-ssim-")
+    tmp = scratch_dir("pcasweep-ssim-")
     cam = data.camera()
     astro = data.astronaut()
     china = load_sample_image("china.jpg")[100:356, 200:520]

@@ -30,7 +30,6 @@ import json
 import os
 import subprocess
 import sys
-import tempfile
 
 import numpy as np
 from PIL import Image
@@ -38,7 +37,7 @@ from sklearn.decomposition import PCA
 
 PCASWEEP = sys.argv[1]
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from refcommon import check, failures  # noqa: E402
+from refcommon import check, failures, scratch_dir  # noqa: E402
 
 
 def write_png16(path, a):
@@ -57,7 +56,7 @@ def read_spectrum(path):
 
 faces = np.load("/usr/lib/python3/dist-packages/skimage/data/lfw_subset.npy")
 ints = np.round(faces * 65535.0).astype(np.uint16)
-tmp = tempfile.mkdtemp(prefix="pcasweep-faces-")
+tmp = scratch_dir("pcasweep-faces-")
 paths = []
 for i, face in enumerate(ints):
     p = os.path.join(tmp, "face%03d.png" % i)
