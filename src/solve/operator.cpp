@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 #include <omp.h>
 
 #include "core/error.hpp"
@@ -140,6 +141,7 @@ SingleOperator::SingleOperator(const Eigen::MatrixXf& X) : X_(&X) { column_momen
 
 double SingleOperator::offset_ratio(const Eigen::VectorXd& mean, const Eigen::VectorXd& sums, Eigen::Index n) {
   const double centred = sums.sum();
+  if (!(centred > 0.0)) return std::numeric_limits<double>::infinity();
   return std::sqrt((centred + double(n) * mean.squaredNorm()) / centred);
 }
 

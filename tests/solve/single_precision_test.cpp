@@ -361,3 +361,22 @@ TEST_CASE("single: wide data (N < d: observation side and fused A_c·A_cᵀ swee
   const double optimal = std::sqrt(sv.tail(sv.size() - k).squaredNorm());
   CHECK((ac - (ac * b.components) * b.components.transpose()).norm() <= (1.0 + 1e-3) * optimal);
 }
+
+TEST_CASE("single: constant data (A_c = 0) have an infinite offset ratio and still solve") {
+  // ‖A_c‖_F = 0: the ratio ‖A‖_F/‖A_c‖_F is infinite by the header's contract,
+  // and the randomized solver must stop at once with eigenvalues that are
+  // zero (a constant column has no variance: common practice) up to float32
+  // rounding of the uncentred products: σ <= √d·2⁻²⁴·‖A‖_F (Higham & Mary's
+  // √n·u growth, as above), eigenvalue σ²/(N−1).
+  const Eigen::MatrixXf x = Eigen::MatrixXf::Constant(40, 12, 3.0f);
+  SingleOperator op(x);
+  CHECK(std::isinf(SingleOperator::offset_ratio(op.mean(), op.column_sums_of_squares(), x.rows())));
+  SolverSettings s;
+  s.choice = SolverChoice::randomized;
+  s.rank = 3;
+  const Basis b = solve(op, s);
+  const double sigma_bound = std::sqrt(12.0) * 0x1p-24 * double(x.norm());
+  CHECK(b.eigenvalues.cwiseAbs().maxCoeff() <= sigma_bound * sigma_bound / 39.0);
+  CHECK(b.total_variance == 0.0);
+  CHECK(b.passes <= 2);
+}
