@@ -175,10 +175,12 @@ int mode_solve(const Args& a) {
   s.tolerance = std::stod(a.get("tol", "0"));
   const int repeat = std::stoi(a.get("repeat", "5"));
   Basis basis;
+  double unit_roundoff = 0x1p-53;
   const auto times = time_runs(repeat, [&] {
     if (single) {
       SingleOperator op(xf);
       basis = solve(op, s);
+      unit_roundoff = op.unit_roundoff();
     } else {
       DenseOperator op(X);
       basis = solve(op, s);
@@ -201,7 +203,7 @@ int mode_solve(const Args& a) {
   j["converged"] = basis.converged;
   // Whether float32 rounding leaves the rank-k error near optimal; solve(X)
   // (the CLI) would re-solve in double when it does not.
-  j["precision_suffices"] = precision_suffices(basis, single ? SingleOperator(xf).unit_roundoff() : 0x1p-53);
+  j["precision_suffices"] = precision_suffices(basis, unit_roundoff);
   j["last_relative_change"] = basis.last_relative_change;
   j["product_flops"] = basis.solver == "randomized" ? basis.passes * 2.0 * double(rows) * double(cols) * l
                                                     : double(rows) * double(cols) * double(cols);

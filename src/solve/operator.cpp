@@ -37,44 +37,9 @@ void column_moments(const Matrix& X, Eigen::VectorXd& mean, Eigen::VectorXd& sum
   }
 }
 
-// Rows per block when centring on the fly: big enough for fast GEMM, small
-// enough that a block of 192 variables stays in cache-friendly sizes.
-constexpr Eigen::Index kBlockRows = 2048;
-
-// The scatter (X − 1·shiftᵀ)ᵀ(X − 1·shiftᵀ), d×d, of X (N×d, any scalar;
-// shift: d or null for none). Blocks of rows are widened to double, shifted
-// into a small buffer and accumulated, one partial scatter per thread, then
-// summed: no centred copy of X, and no cancellation from AᵀA − N·μμᵀ.
-template <class Matrix>
-Eigen::MatrixXd blocked_scatter(const Matrix& X, const Eigen::VectorXd* shift) {
-  const Eigen::Index n = X.rows(), d = X.cols();
-  const Eigen::Index blocks = (n + kBlockRows - 1) / kBlockRows;
-  const int threads = std::max(1, std::min<int>(omp_get_max_threads(), int(blocks)));
-  std::vector<Eigen::MatrixXd> partial(threads, Eigen::MatrixXd::Zero(d, d));
-#pragma omp parallel num_threads(threads)
-  {
-    Eigen::MatrixXd& mine = partial[omp_get_thread_num()];
-    Eigen::MatrixXd block;
-#pragma omp for schedule(static)
-    for (Eigen::Index b = 0; b < blocks; ++b) {
-      const Eigen::Index start = b * kBlockRows;
-      block = X.middleRows(start, std::min(kBlockRows, n - start)).template cast<double>();
-      if (shift) block.rowwise() -= shift->transpose();
-      mine.selfadjointView<Eigen::Lower>().rankUpdate(block.transpose());
-    }
-  }
-  Eigen::MatrixXd total = Eigen::MatrixXd::Zero(d, d);
-  for (const auto& p : partial) total += p;
-  total.triangularView<Eigen::StrictlyUpper>() = total.transpose();
-  return total;
-}
-
-// Rows (or columns) per block of a fused sweep: the block (512×1024 floats,
-// 2 MiB) stays in cache between its two products; 128 to 1024 measured alike.
-constexpr Eigen::Index kSweepBlock = 512;
-
-// Runs block(b, partial) for b in 0..blocks−1 across the threads, each
-// thread adding into its own rows×cols partial sum; returns the sum.
+// Runs block(b, partial, scratch) for b in 0..blocks−1 across the threads,
+// each thread adding into its own rows×cols partial sum and reusing its own
+// scratch matrix between blocks; returns the sum of the partials.
 template <class Block>
 Eigen::MatrixXd sweep(Eigen::Index blocks, Eigen::Index rows, Eigen::Index cols, Block&& block) {
   const int threads = std::max(1, std::min<int>(omp_get_max_threads(), int(blocks)));
@@ -82,12 +47,39 @@ Eigen::MatrixXd sweep(Eigen::Index blocks, Eigen::Index rows, Eigen::Index cols,
 #pragma omp parallel num_threads(threads)
   {
     Eigen::MatrixXd& mine = partial[omp_get_thread_num()];
+    Eigen::MatrixXd scratch;
 #pragma omp for schedule(static)
-    for (Eigen::Index b = 0; b < blocks; ++b) block(b, mine);
+    for (Eigen::Index b = 0; b < blocks; ++b) block(b, mine, scratch);
   }
   for (int t = 1; t < threads; ++t) partial[0] += partial[t];
   return std::move(partial[0]);
 }
+
+// Rows per block when centring on the fly: big enough for fast GEMM, small
+// enough that a block of 192 variables stays in cache-friendly sizes.
+constexpr Eigen::Index kBlockRows = 2048;
+
+// The scatter (X − 1·shiftᵀ)ᵀ(X − 1·shiftᵀ), d×d, of X (N×d, any scalar;
+// shift: d). Blocks of rows are widened to double and shifted into each
+// thread's scratch buffer and accumulated: no centred copy of X, and no
+// cancellation from AᵀA − N·μμᵀ.
+template <class Matrix>
+Eigen::MatrixXd blocked_scatter(const Matrix& X, const Eigen::VectorXd& shift) {
+  const Eigen::Index n = X.rows(), d = X.cols();
+  Eigen::MatrixXd total =
+      sweep((n + kBlockRows - 1) / kBlockRows, d, d, [&](Eigen::Index b, Eigen::MatrixXd& part, Eigen::MatrixXd& block) {
+        const Eigen::Index start = b * kBlockRows;
+        block = X.middleRows(start, std::min(kBlockRows, n - start)).template cast<double>();
+        block.rowwise() -= shift.transpose();
+        part.selfadjointView<Eigen::Lower>().rankUpdate(block.transpose());
+      });
+  total.triangularView<Eigen::StrictlyUpper>() = total.transpose();
+  return total;
+}
+
+// Rows (or columns) per block of a fused sweep: the block (512×1024 floats,
+// 2 MiB) stays in cache between its two products; 128 to 1024 measured alike.
+constexpr Eigen::Index kSweepBlock = 512;
 }  // namespace
 
 Eigen::MatrixXd CenteredOperator::apply_normal(const Eigen::MatrixXd& w, Eigen::MatrixXd& y) const {
@@ -124,7 +116,7 @@ Eigen::MatrixXd DenseOperator::apply_transpose(const Eigen::MatrixXd& y) const {
   return z;
 }
 
-Eigen::MatrixXd DenseOperator::scatter() const { return blocked_scatter(X_, &mean_); }
+Eigen::MatrixXd DenseOperator::scatter() const { return blocked_scatter(X_, mean_); }
 
 Eigen::VectorXd DenseOperator::column_sums_of_squares() const {
   Eigen::VectorXd s(X_.cols());
@@ -139,13 +131,13 @@ SingleOperator::SingleOperator(const Eigen::MatrixXd& X) : owned_(X.cast<float>(
 
 SingleOperator::SingleOperator(const Eigen::MatrixXf& X) : X_(&X) { column_moments(X, mean_, sums_); }
 
-double SingleOperator::offset_ratio(const Eigen::VectorXd& mean, const Eigen::VectorXd& sums, Eigen::Index n) {
-  const double centred = sums.sum();
+double SingleOperator::offset_ratio() const {
+  const double centred = sums_.sum();
   if (!(centred > 0.0)) return std::numeric_limits<double>::infinity();
-  return std::sqrt((centred + double(n) * mean.squaredNorm()) / centred);
+  return std::sqrt((centred + double(X_->rows()) * mean_.squaredNorm()) / centred);
 }
 
-double SingleOperator::unit_roundoff() const { return 0x1p-24 * offset_ratio(mean_, sums_, X_->rows()); }
+double SingleOperator::unit_roundoff() const { return 0x1p-24 * offset_ratio(); }
 
 Eigen::MatrixXd SingleOperator::apply(const Eigen::MatrixXd& omega) const {
   // A_c·Ω = A·Ω − 1·(μᵀΩ): the product in float, the centring term in double.
@@ -169,7 +161,7 @@ Eigen::MatrixXd SingleOperator::apply_normal(const Eigen::MatrixXd& w, Eigen::Ma
   const Eigen::MatrixXf wf = w.cast<float>();
   const Eigen::RowVectorXd shift = mean_.transpose() * w;
   y.resize(n, l);
-  Eigen::MatrixXd z = sweep((n + kSweepBlock - 1) / kSweepBlock, d, l, [&](Eigen::Index b, Eigen::MatrixXd& part) {
+  Eigen::MatrixXd z = sweep((n + kSweepBlock - 1) / kSweepBlock, d, l, [&](Eigen::Index b, Eigen::MatrixXd& part, Eigen::MatrixXd&) {
     const Eigen::Index start = b * kSweepBlock, count = std::min(kSweepBlock, n - start);
     const auto rows = X_->middleRows(start, count);
     auto yb = y.middleRows(start, count);
@@ -188,7 +180,7 @@ Eigen::MatrixXd SingleOperator::apply_normal_transpose(const Eigen::MatrixXd& w,
   const Eigen::MatrixXf wf = w.cast<float>();
   const Eigen::RowVectorXd total = w.colwise().sum();
   y.resize(d, l);
-  Eigen::MatrixXd z = sweep((d + kSweepBlock - 1) / kSweepBlock, n, l, [&](Eigen::Index b, Eigen::MatrixXd& part) {
+  Eigen::MatrixXd z = sweep((d + kSweepBlock - 1) / kSweepBlock, n, l, [&](Eigen::Index b, Eigen::MatrixXd& part, Eigen::MatrixXd&) {
     const Eigen::Index start = b * kSweepBlock, count = std::min(kSweepBlock, d - start);
     const auto cols = X_->middleCols(start, count);
     auto yb = y.middleRows(start, count);
@@ -200,7 +192,7 @@ Eigen::MatrixXd SingleOperator::apply_normal_transpose(const Eigen::MatrixXd& w,
   return z;
 }
 
-Eigen::MatrixXd SingleOperator::scatter() const { return blocked_scatter(*X_, &mean_); }
+Eigen::MatrixXd SingleOperator::scatter() const { return blocked_scatter(*X_, mean_); }
 
 Precision parse_precision(const std::string& text) {
   if (text == "double") return Precision::double_precision;

@@ -102,9 +102,9 @@ class SingleOperator : public CenteredOperator {
   Eigen::MatrixXd apply_normal_transpose(const Eigen::MatrixXd& w, Eigen::MatrixXd& y) const override;
   bool fuses_normal_products() const override { return true; }
 
-  // ‖A‖_F/‖A_c‖_F of the N×d data X: how much larger the uncentred data is
-  // than its spread (1 for centred data; infinite when A_c = 0). Returns a scalar.
-  static double offset_ratio(const Eigen::VectorXd& mean, const Eigen::VectorXd& sums, Eigen::Index n);
+  // Returns ‖A‖_F/‖A_c‖_F of the data: how much larger the uncentred data
+  // are than their spread (1 for centred data; infinite when A_c = 0).
+  double offset_ratio() const;
 
  private:
   Eigen::MatrixXf owned_;        // the copy, when made from double observations

@@ -121,12 +121,11 @@ bool precision_suffices(const Basis& basis, double unit_roundoff) {
 
 Basis solve(const Eigen::MatrixXd& X, const SolverSettings& settings) {
   Plan plan = plan_solve(X.rows(), X.cols(), settings);
-  const DenseOperator dense(X);
   if (plan.choice == SolverChoice::randomized && settings.precision == Precision::single_precision) {
-    const double ratio = SingleOperator::offset_ratio(dense.mean(), dense.column_sums_of_squares(), X.rows());
+    const SingleOperator single(X);
+    const double ratio = single.offset_ratio();
     char buf[320];
     if (ratio <= kSingleOffsetLimit) {
-      const SingleOperator single(X);
       Basis basis = run(single, plan, settings);
       if (precision_suffices(basis, single.unit_roundoff())) return basis;
       std::snprintf(buf, sizeof buf,
@@ -142,7 +141,7 @@ Basis solve(const Eigen::MatrixXd& X, const SolverSettings& settings) {
     }
     plan.reason += buf;
   }
-  return run(dense, plan, settings);
+  return run(DenseOperator(X), plan, settings);
 }
 
 }  // namespace pcasweep
