@@ -11,24 +11,14 @@
 #include "solve/operator.hpp"
 #include "solve/randomized.hpp"
 #include "solve/solver.hpp"
+#include "../support/spectra.hpp"
 
 using namespace pcasweep;
+using pcasweep::testing::centred;
+using pcasweep::testing::geometric_spectrum;
+using pcasweep::testing::with_spectrum;
 
 namespace {
-
-// N×d matrix U·diag(s)·Vᵀ with random orthonormal U, V (from QR of Gaussians)
-// plus a column offset, so the solver has a mean to remove.
-Eigen::MatrixXd with_spectrum(Eigen::Index n, Eigen::Index d, const Eigen::VectorXd& s, std::uint64_t seed) {
-  const Eigen::Index r = s.size();
-  Eigen::HouseholderQR<Eigen::MatrixXd> qu(gaussian_matrix(n, r, seed)), qv(gaussian_matrix(d, r, seed + 1));
-  const Eigen::MatrixXd u = qu.householderQ() * Eigen::MatrixXd::Identity(n, r);
-  const Eigen::MatrixXd v = qv.householderQ() * Eigen::MatrixXd::Identity(d, r);
-  Eigen::MatrixXd a = u * s.asDiagonal() * v.transpose();
-  a.rowwise() += Eigen::RowVectorXd::LinSpaced(d, 10.0, 20.0);
-  return a;
-}
-
-Eigen::MatrixXd centred(const Eigen::MatrixXd& a) { return a.rowwise() - a.colwise().mean(); }
 
 // ‖A_c − A_c·V·Vᵀ‖_F, the error of projecting on the returned components.
 double projection_error(const Eigen::MatrixXd& ac, const Eigen::MatrixXd& v) {
@@ -68,7 +58,7 @@ TEST_CASE("randomized: exact-rank matrix recovered as BDCSVD gives it (1e-10)") 
 TEST_CASE("randomized: decaying spectrum, default settings within (1+1e-3) of optimal") {
   const Eigen::Index n = 400, d = 200, k = 20;
   // Geometric decay 0.9^i: slow enough that q = 0 visibly misses (see below).
-  const Eigen::VectorXd s = Eigen::VectorXd::LinSpaced(d, 0, double(d - 1)).unaryExpr([](double i) { return std::pow(0.9, i); });
+  const Eigen::VectorXd s = geometric_spectrum(d, 1.0, 0.9);
   const Eigen::MatrixXd a = with_spectrum(n, d, s, 21);
   const Eigen::MatrixXd ac = centred(a);
   Eigen::BDCSVD<Eigen::MatrixXd> ref(ac);
@@ -151,7 +141,7 @@ TEST_CASE("randomized: the Gaussian test matrix does not depend on the thread co
 
 TEST_CASE("randomized: another seed gives the same eigenvalues to 1e-6 on a separated spectrum") {
   const Eigen::Index n = 400, d = 100, k = 8;
-  const Eigen::VectorXd s = Eigen::VectorXd::LinSpaced(d, 0, double(d - 1)).unaryExpr([](double i) { return std::pow(0.6, i); });
+  const Eigen::VectorXd s = geometric_spectrum(d, 1.0, 0.6);
   const Eigen::MatrixXd a = with_spectrum(n, d, s, 51);
   DenseOperator op(a);
   RandomizedSettings r1 = settings_for(k), r2 = settings_for(k);

@@ -20,8 +20,12 @@
 #include "solve/operator.hpp"
 #include "solve/randomized.hpp"
 #include "solve/solver.hpp"
+#include "../support/spectra.hpp"
 
 using namespace pcasweep;
+using pcasweep::testing::centred;
+using pcasweep::testing::geometric_spectrum;
+using pcasweep::testing::with_spectrum;
 
 namespace {
 
@@ -29,7 +33,6 @@ constexpr double kU = 0x1p-24;       // float32 unit roundoff (Higham, Table 2.1
 constexpr double kUd = 0x1p-53;      // float64 unit roundoff
 constexpr double kLambda = 8.0;      // Higham & Mary's λ, see the header comment
 
-Eigen::MatrixXd centred(const Eigen::MatrixXd& a) { return a.rowwise() - a.colwise().mean(); }
 
 // Higham & Mary's probabilistic constant for inner products of n terms.
 double gamma_tilde(Eigen::Index n) { return kLambda * std::sqrt(double(n)) * kU; }
@@ -204,19 +207,6 @@ void check_products(const Eigen::MatrixXd& a, const std::string& label) {
   CHECK(worst_ratio(s, s_ref, s_bound) <= 1.0);
 }
 
-// N×d matrix U·diag(s)·Vᵀ with random orthonormal U, V plus column means
-// rising linearly from `low` to `high` (as tests/solve/randomized_test.cpp builds it).
-Eigen::MatrixXd with_spectrum(Eigen::Index n, Eigen::Index d, const Eigen::VectorXd& s, std::uint64_t seed,
-                              double low, double high) {
-  const Eigen::Index r = s.size();
-  Eigen::HouseholderQR<Eigen::MatrixXd> qu(gaussian_matrix(n, r, seed)), qv(gaussian_matrix(d, r, seed + 1));
-  const Eigen::MatrixXd u = qu.householderQ() * Eigen::MatrixXd::Identity(n, r);
-  const Eigen::MatrixXd v = qv.householderQ() * Eigen::MatrixXd::Identity(d, r);
-  Eigen::MatrixXd a = u * s.asDiagonal() * v.transpose();
-  a.rowwise() += Eigen::RowVectorXd::LinSpaced(d, low, high);
-  return a;
-}
-
 SolverSettings single_randomized(Eigen::Index k) {
   SolverSettings s;
   s.choice = SolverChoice::randomized;
@@ -285,8 +275,7 @@ TEST_CASE("single: randomized solve of a decaying spectrum with single products 
   // column means 2..4: ‖A‖_F/‖A_c‖_F about 3, as image data (the operator's
   // offset guard keeps double above 16).
   const Eigen::Index n = 400, d = 200, k = 20;
-  const Eigen::VectorXd s =
-      Eigen::VectorXd::LinSpaced(d, 0, double(d - 1)).unaryExpr([](double i) { return 100.0 * std::pow(0.9, i); });
+  const Eigen::VectorXd s = geometric_spectrum(d, 100.0, 0.9);
   const Eigen::MatrixXd a = with_spectrum(n, d, s, 21, 2.0, 4.0);
   const Eigen::MatrixXd ac = centred(a);
   const double ratio = a.norm() / ac.norm();
@@ -323,7 +312,7 @@ TEST_CASE("single: randomized solve of a decaying spectrum with single products 
 
 TEST_CASE("single: asked for with the exact solver (or auto choosing exact) the products stay double") {
   // Same data kind as above (small offset: the offset guard is not what decides).
-  const Eigen::VectorXd s = Eigen::VectorXd::LinSpaced(60, 0, 59).unaryExpr([](double i) { return 50.0 * std::pow(0.8, i); });
+  const Eigen::VectorXd s = geometric_spectrum(60, 50.0, 0.8);
   const Eigen::MatrixXd a = with_spectrum(300, 60, s, 31, 1.0, 2.0);
   SolverSettings settings;
   settings.precision = Precision::single_precision;
@@ -346,8 +335,7 @@ TEST_CASE("single: wide data (N < d: observation side and fused A_c·A_cᵀ swee
   // fused products are apply_normal_transpose over 512-column blocks (two and
   // a partial). Spectrum 60·0.85^i, column means 1..2.
   const Eigen::Index n = 150, d = 1100, k = 12;
-  const Eigen::VectorXd s =
-      Eigen::VectorXd::LinSpaced(n, 0, double(n - 1)).unaryExpr([](double i) { return 60.0 * std::pow(0.85, i); });
+  const Eigen::VectorXd s = geometric_spectrum(n, 60.0, 0.85);
   const Eigen::MatrixXd a = with_spectrum(n, d, s, 41, 1.0, 2.0);
   const Eigen::MatrixXd ac = centred(a);
   CAPTURE(a.norm() / ac.norm());
