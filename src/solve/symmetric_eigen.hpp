@@ -21,11 +21,4 @@ struct SymmetricEigen {
 // Throws Error(data) if the eigensolver does not converge.
 SymmetricEigen symmetric_eigen(const Eigen::MatrixXd& s, bool with_vectors);
 
-// s: m×m symmetric (only the lower triangle is read), 1 <= count <= m.
-// Returns the `count` largest eigenvalues, decreasing, and their unit
-// eigenvectors (m×count). With LAPACK by dsyevr (MRRR), which forms only the
-// wanted vectors: block Krylov's final step wants l of m (74 of 370 on the
-// benchmark's slow decay). Throws Error(data) if the eigensolver fails.
-SymmetricEigen leading_symmetric_eigen(const Eigen::MatrixXd& s, Eigen::Index count);
-
 }  // namespace pcasweep
