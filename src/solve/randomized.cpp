@@ -271,6 +271,7 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
       z_next = right_side ? op.apply_normal(w, y) : op.apply_normal_transpose(w, y);
       passes += 2;
     } else {
+      y.resize(0, 0);  // the previous block's Y goes before the new one is made
       y = forward(w);
       ++passes;
     }
