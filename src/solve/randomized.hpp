@@ -18,8 +18,9 @@
 // A sample as wide as min(N, d) is exact in two passes and stops there.
 // Products go through the operator in its own precision (double, or float32
 // for SingleOperator, whose paired products block Krylov then asks for in one
-// sweep); everything else is double, and the noise floors scale with the
-// operator's unit_roundoff().
+// sweep, except for a block it guesses to be the last, which needs only one);
+// everything else is double, and the noise floors scale with the operator's
+// unit_roundoff().
 // Cost: passes·2·N·d·l flops plus, for block Krylov, O(s·m·l + N·l²) for the
 // Gram matrix and projections (m = Krylov width, s = min(N, d)); memory: the
 // data plus O((N + d)·l) for the power scheme; for block Krylov O(N·l + d·m)
