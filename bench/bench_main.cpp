@@ -175,7 +175,7 @@ int mode_solve(const Args& a) {
   s.tolerance = std::stod(a.get("tol", "0"));
   const int repeat = std::stoi(a.get("repeat", "5"));
   Basis basis;
-  double unit_roundoff = 0x1p-53;
+  double unit_roundoff = kDoubleRoundoff;
   const auto times = time_runs(repeat, [&] {
     if (single) {
       SingleOperator op(xf);

@@ -137,7 +137,7 @@ double SingleOperator::offset_ratio() const {
   return std::sqrt((centred + double(X_->rows()) * mean_.squaredNorm()) / centred);
 }
 
-double SingleOperator::unit_roundoff() const { return 0x1p-24 * offset_ratio(); }
+double SingleOperator::unit_roundoff() const { return kSingleRoundoff * offset_ratio(); }
 
 Eigen::MatrixXd SingleOperator::apply(const Eigen::MatrixXd& omega) const {
   // A_c·Ω = A·Ω − 1·(μᵀΩ): the product in float, the centring term in double.

@@ -14,6 +14,10 @@
 
 namespace pcasweep {
 
+// Unit roundoff of IEEE double (2⁻⁵³) and single (2⁻²⁴) arithmetic.
+inline constexpr double kDoubleRoundoff = 0x1p-53;
+inline constexpr double kSingleRoundoff = 0x1p-24;
+
 class CenteredOperator {
  public:
   virtual ~CenteredOperator() = default;
@@ -34,7 +38,7 @@ class CenteredOperator {
   virtual Eigen::VectorXd column_sums_of_squares() const = 0;
   // Unit roundoff of the arithmetic apply() and apply_transpose() run in:
   // 2⁻⁵³ (double, the default) or 2⁻²⁴ (single).
-  virtual double unit_roundoff() const { return 0x1p-53; }
+  virtual double unit_roundoff() const { return kDoubleRoundoff; }
   // W: d×l. Sets Y = A_c·W (N×l) and returns A_cᵀ·Y (d×l). By default the
   // two products one after the other; see fuses_normal_products().
   virtual Eigen::MatrixXd apply_normal(const Eigen::MatrixXd& w, Eigen::MatrixXd& y) const;

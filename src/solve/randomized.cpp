@@ -105,7 +105,7 @@ constexpr double kChangeFloor = 1e-9;
 // 40× that margin, and more for data whose mean inflates the rounding.
 double rounding_level(const CenteredOperator& op) {
   const double n = double(op.rows() + op.cols()), u = op.unit_roundoff();
-  if (u > std::numeric_limits<double>::epsilon()) return u;
+  if (u > kDoubleRoundoff) return u;
   return n * u / (1.0 - n * u);
 }
 

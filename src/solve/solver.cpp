@@ -104,7 +104,7 @@ Basis run(const CenteredOperator& op, const Plan& plan, const SolverSettings& se
     basis = solve_randomized(op, rs);
   }
   basis.solver_reason = plan.reason;
-  basis.precision = op.unit_roundoff() > 0x1p-53 ? "single" : "double";
+  basis.precision = op.unit_roundoff() > kDoubleRoundoff ? "single" : "double";
   return basis;
 }
 
@@ -115,7 +115,7 @@ Basis solve(const CenteredOperator& op, const SolverSettings& settings) {
 }
 
 bool precision_suffices(const Basis& basis, double unit_roundoff) {
-  if (unit_roundoff <= 0x1p-53) return true;
+  if (unit_roundoff <= kDoubleRoundoff) return true;
   return variance_beyond_rank(basis) >= kSingleTailMargin * unit_roundoff * basis.total_variance;
 }
 

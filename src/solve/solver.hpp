@@ -62,7 +62,7 @@ inline constexpr double kSingleOffsetLimit = 16.0;
 // of the total: rounding of order u·‖A_c‖²_F moves the rank-k error² by as
 // much, so for an error within 1e-3 of optimal the optimal error² must exceed
 // about 500·u·‖A_c‖²_F. Measured where it fails: fast decay at k = 256
-// (variance beyond 7.6e-12 of the total) gave error/optimum 27 in single
+// (variance beyond 7.6e-12 of the total) gave error/optimum 29.2 in single
 // (docs/performance.md, "Precision").
 inline constexpr double kSingleTailMargin = 1e3;
 // The exact solver refuses when its d×d matrices would need more than this.
