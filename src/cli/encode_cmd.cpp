@@ -72,7 +72,7 @@ Action setup_encode(CLI::App& sub) {
     if (!args->basis.empty() && args->dct) throw usage_error("--basis and --dct are alternatives; give one");
     std::optional<LoadedBasis> loaded;
     if (!args->basis.empty()) loaded = load_basis_file(args->basis);
-    const Image image = read_image(args->input, ImageReadOptions{settings.drop_alpha});
+    const Image image = read_image(args->input, read_options(settings));
     EncodeResult result;
     if (loaded) {
       // The basis fixes patch size and colour mode; an explicit --patch/--colour must agree.

@@ -30,8 +30,12 @@ struct Image {
   std::uint16_t at(int x, int y, int c) const { return samples[(std::size_t(y) * width + x) * channels + c]; }
 };
 
+// Largest image accepted by default, in pixels (width·height): one gigapixel.
+inline constexpr std::uint64_t kDefaultMaxPixels = std::uint64_t(1) << 30;
+
 struct ImageReadOptions {
   bool drop_alpha = false;  // remove an alpha channel (gray+alpha -> gray, RGBA -> RGB)
+  std::uint64_t max_pixels = kDefaultMaxPixels;  // refuse larger declared sizes before allocating (--max-pixels)
 };
 
 // Largest image accepted, in samples (width*height*channels): 2^30, 8 GiB as doubles.

@@ -35,7 +35,7 @@ std::vector<int> file_ks(const std::vector<int>& requested, Eigen::Index rank) {
 }
 
 ImageAnalysis observe_file(const std::string& path, const ImageStudySettings& settings) {
-  Image image = read_image(path, ImageReadOptions{settings.drop_alpha});
+  Image image = read_image(path, read_options(settings));
   auto layout = std::make_unique<PatchLayout>(image, settings.patch, path);
   ImageAnalysis a;
   a.inputs = {path};

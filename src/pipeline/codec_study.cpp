@@ -56,7 +56,7 @@ SavedBasis fit_basis(const std::vector<std::string>& inputs, const ImageStudySet
   saved.patch = settings.patch;
   saved.transform = transform;
   for (std::size_t i = 0; i < inputs.size(); ++i) {
-    const Image image = read_image(inputs[i], ImageReadOptions{settings.drop_alpha});
+    const Image image = read_image(inputs[i], read_options(settings));
     if (i == 0) {
       saved.channels = image.channels;
       saved.bit_depth = image.bit_depth;

@@ -25,7 +25,7 @@ ImageAnalysis analyze_image_files(const std::vector<std::string>& paths, const I
   }
   std::vector<Image> sources;
   sources.reserve(paths.size());
-  for (const auto& p : paths) sources.push_back(read_image(p, ImageReadOptions{settings.drop_alpha}));
+  for (const auto& p : paths) sources.push_back(read_image(p, read_options(settings)));
   std::unique_ptr<Layout> layout;
   if (layout_name == "patches") {
     layout = std::make_unique<PatchLayout>(sources.front(), settings.patch, paths.front());

@@ -15,7 +15,7 @@
 namespace pcasweep {
 
 ImageAnalysis analyze_image(const std::string& path, const ImageStudySettings& settings) {
-  Image image = read_image(path, ImageReadOptions{settings.drop_alpha});
+  Image image = read_image(path, read_options(settings));
   auto layout = std::make_unique<PatchLayout>(image, settings.patch, path);
   if (layout->observation_count() < 2) {
     throw usage_error(path + ": only one patch fits; use a smaller --patch or --stride");

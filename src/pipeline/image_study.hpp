@@ -27,8 +27,12 @@ struct ImageStudySettings {
   std::string layout = "patches";  // patches | whole | bands (pipeline/image_set.hpp)
   PatchOptions patch;
   bool drop_alpha = false;
+  std::uint64_t max_pixels = kDefaultMaxPixels;  // --max-pixels (io/image.hpp)
   SolverSettings solver;
 };
+
+// The reader options these settings ask for.
+inline ImageReadOptions read_options(const ImageStudySettings& s) { return {s.drop_alpha, s.max_pixels}; }
 
 struct ImageAnalysis {
   std::vector<std::string> inputs;   // paths as given, one per source
