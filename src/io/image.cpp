@@ -1,16 +1,18 @@
 #include "io/image.hpp"
 
-#include <png.h>
 #include <stb_image.h>
-#include <stb_image_write.h>
 
 #include <algorithm>
 #include <cctype>
+#include <cmath>
+#include <cstdio>
 #include <cstring>
 #include <filesystem>
+#include <fstream>
 
 #include "core/error.hpp"
 #include "io/atomic_file.hpp"
+#include "io/png.hpp"
 
 namespace pcasweep {
 
@@ -48,12 +50,48 @@ bool has_image_extension(const std::string& path) {
 
 namespace {
 
+std::string mpixel_text(double pixels) {
+  char buffer[64];
+  if (pixels >= 1e5) std::snprintf(buffer, sizeof buffer, "%.1f Mpixel", pixels / 1e6);
+  else std::snprintf(buffer, sizeof buffer, "%.0f pixels", pixels);
+  return buffer;
+}
+
+std::string bytes_text(double bytes) {
+  char buffer[64];
+  if (bytes >= 1e9) std::snprintf(buffer, sizeof buffer, "%.1f GB", bytes / 1e9);
+  else if (bytes >= 1e6) std::snprintf(buffer, sizeof buffer, "%.1f MB", bytes / 1e6);
+  else if (bytes >= 1e4) std::snprintf(buffer, sizeof buffer, "%.1f KB", bytes / 1e3);
+  else std::snprintf(buffer, sizeof buffer, "%.0f bytes", bytes);
+  return buffer;
+}
+
+}  // namespace
+
+void guard_declared_size(const std::string& name, std::uint64_t width, std::uint64_t height,
+                         std::uint64_t max_pixels, double min_file_bytes, std::uint64_t file_bytes,
+                         const std::string& why) {
+  const std::string size = std::to_string(width) + "x" + std::to_string(height);
+  const double pixels = double(width) * double(height);
+  if (pixels > double(max_pixels)) {
+    throw data_error(name + ": declares " + size + " = " + mpixel_text(pixels) + ", above --max-pixels (" +
+                     std::to_string(max_pixels) + "); raise --max-pixels to read it");
+  }
+  if (double(file_bytes) < min_file_bytes) {
+    throw data_error(name + ": declares " + size + " pixels, which needs at least " + bytes_text(min_file_bytes) +
+                     " even at " + why + ", but the file holds " + std::to_string(file_bytes) +
+                     " bytes: it is truncated or its header is corrupt");
+  }
+}
+
+namespace {
+
 // Binary PNM (P5 gray, P6 RGB) is read here rather than through stb_image:
 // the stb version Debian ships neither checks that the raster is complete
 // (a truncated file decodes from uninitialised memory) nor swaps 16-bit
 // samples, which the Netpbm format stores most significant byte first.
 // Returns false if `bytes` is not binary PNM; throws Error(data) if it is but is bad.
-bool decode_binary_pnm(const std::string& bytes, const std::string& name, Image& image) {
+bool decode_binary_pnm(const std::string& bytes, const std::string& name, std::uint64_t max_pixels, Image& image) {
   if (bytes.size() < 2 || bytes[0] != 'P' || (bytes[1] != '5' && bytes[1] != '6')) return false;
   std::size_t pos = 2;
   auto next_number = [&](const char* what) -> long {
@@ -85,6 +123,11 @@ bool decode_binary_pnm(const std::string& bytes, const std::string& name, Image&
   ++pos;  // the single whitespace byte before the raster
   const int channels = bytes[1] == '5' ? 1 : 3;
   const int bytes_per_sample = maxval < 256 ? 1 : 2;
+  // Binary PNM is an uncompressed raster (pgm(5), ppm(5)): the file holds at least
+  // width·height·channels·bytes_per_sample bytes.
+  guard_declared_size(name, std::uint64_t(width), std::uint64_t(height), max_pixels,
+                      double(width) * double(height) * channels * bytes_per_sample, bytes.size(),
+                      "the raster size of binary PNM (uncompressed)");
   const std::size_t samples = std::size_t(width) * std::size_t(height) * channels;
   if (samples > kMaxImageSamples) {
     throw data_error(name + ": image too large (" + std::to_string(width) + "x" + std::to_string(height) + ")");
@@ -109,13 +152,74 @@ bool decode_binary_pnm(const std::string& bytes, const std::string& name, Image&
   return true;
 }
 
+
+// The least number of bytes a file of one of the formats read by stb_image can take for a
+// declared w×h, from the format's maximum compression, with the bound's name for the message.
+// `bytes` is the whole file (stbi_info has already accepted it).
+struct MinimumSize {
+  double bytes;
+  const char* why;
+};
+
+MinimumSize stb_minimum_size(const std::string& file, std::uint64_t w, std::uint64_t h) {
+  const auto* b = reinterpret_cast<const unsigned char*>(file.data());
+  const std::size_t n = file.size();
+  const double pixels = double(w) * double(h);
+  auto le16 = [&](std::size_t at) { return at + 2 <= n ? unsigned(b[at]) | (unsigned(b[at + 1]) << 8) : 0u; };
+  auto le32 = [&](std::size_t at) { return at + 4 <= n ? le16(at) | (std::uint32_t(le16(at + 2)) << 16) : 0u; };
+  if (n >= 2 && b[0] == 0xFF && b[1] == 0xD8) {
+    // JPEG (ITU-T T.81), Huffman-coded (stb_image decodes no arithmetic-coded JPEG). The
+    // component with the largest sampling factors has ceil(w/8)·ceil(h/8) blocks, and every block
+    // gets its DC difference coded with a Huffman code of at least one bit, in the sequential scan
+    // or in the DC scan that precedes the AC scans of a progressive file (T.81 G.1.1.1.1); AC
+    // data may cost next to nothing (progressive end-of-band runs cover up to 32767 blocks per
+    // code). Assumed: at least 1 bit per 8×8 block of that component, generous (a baseline block
+    // needs a DC and an end-of-block code, several bits in practice).
+    return {double((w + 7) / 8) * double((h + 7) / 8) / 8.0, "one bit per 8x8 block (JPEG, ITU-T T.81)"};
+  }
+  if (n >= 2 && b[0] == 'B' && b[1] == 'M') {
+    // BMP: stb_image reads only uncompressed rasters (BI_RGB, BI_BITFIELDS) and refuses RLE
+    // (which has no bound anyway: its end-of-line and end-of-bitmap escapes skip any number of
+    // pixels in 2 bytes). Uncompressed rows are padded to 4 bytes: ceil(w·bpp/32)·4 bytes per row
+    // (Microsoft BITMAPINFOHEADER documentation). bpp sits at byte 24 after a 12-byte OS/2
+    // header, at byte 28 after the larger Windows headers.
+    const std::uint32_t header = le32(14);
+    std::uint64_t bpp = header == 12 ? le16(24) : le16(28);
+    if (bpp < 1) bpp = 1;
+    return {double(h) * double((w * bpp + 31) / 32 * 4), "the raster size of uncompressed BMP"};
+  }
+  const bool gif = n >= 4 && std::memcmp(b, "GIF8", 4) == 0;
+  const bool psd = n >= 4 && std::memcmp(b, "8BPS", 4) == 0;
+  const bool hdr = n >= 2 && b[0] == '#' && b[1] == '?';
+  const bool pic = n >= 4 && b[0] == 0x53 && b[1] == 0x80 && b[2] == 0xF6 && b[3] == 0x34;
+  if (gif || psd || hdr || pic) {
+    // Formats stb_image reads that pcasweep does not advertise. One generous bound for all,
+    // 16384 pixels per byte, above each format's densest coding as derived here from their
+    // descriptions (from memory, not re-checked against the documents): Softimage PIC mixed
+    // runs, 65535 pixels in a 4-byte packet; GIF LZW, at most 4096 pixels per code of at least
+    // 3 bits; PSD PackBits, 128 bytes per 2; Radiance HDR runs, 127 bytes per 2.
+    return {pixels / 16384.0, "16384 pixels per byte (the densest of GIF, PSD, HDR, PIC)"};
+  }
+  // TGA, which stb_image identifies last, by elimination (it has no signature). Header
+  // (Truevision TGA 2.0): image type at byte 2, bits per pixel (or per colour-map index) at 16.
+  const unsigned type = n > 2 ? b[2] : 0, bits = n > 16 ? b[16] : 8;
+  const double pixel_bytes = std::max(1u, (bits + 7) / 8);
+  if (type == 9 || type == 10 || type == 11) {
+    // RLE: a packet is a header byte whose 7 low bits + 1 count its pixels (at most 128), then
+    // one pixel value (run) or that many values (raw): at most 128 pixels per 1 + pixel_bytes bytes.
+    return {std::ceil(pixels / 128.0) * (1 + pixel_bytes), "128 pixels per RLE packet (TGA)"};
+  }
+  return {pixels * pixel_bytes, "the raster size of uncompressed TGA"};
+}
+
 }  // namespace
 
 Image decode_image(const std::string& bytes, const std::string& name, const ImageReadOptions& options) {
   if (bytes.empty()) throw data_error(name + ": empty file");
+  if (has_png_signature(bytes.data(), bytes.size())) return decode_png(bytes, name, options);
   {
     Image pnm;
-    if (decode_binary_pnm(bytes, name, pnm)) return pnm;  // no alpha in P5/P6
+    if (decode_binary_pnm(bytes, name, options.max_pixels, pnm)) return pnm;  // no alpha in P5/P6
   }
   const auto* data = reinterpret_cast<const stbi_uc*>(bytes.data());
   if (bytes.size() > std::size_t(INT32_MAX)) throw data_error(name + ": file too large");
@@ -126,6 +230,9 @@ Image decode_image(const std::string& bytes, const std::string& name, const Imag
                      std::string(stbi_failure_reason() ? stbi_failure_reason() : "unknown format") + ")");
   }
   if (w <= 0 || h <= 0 || c <= 0 || c > 4) throw data_error(name + ": image header declares an impossible size");
+  const MinimumSize minimum = stb_minimum_size(bytes, std::uint64_t(w), std::uint64_t(h));
+  guard_declared_size(name, std::uint64_t(w), std::uint64_t(h), options.max_pixels, minimum.bytes, bytes.size(),
+                      minimum.why);
   if (std::size_t(w) * std::size_t(h) * std::size_t(c) > kMaxImageSamples) {
     throw data_error(name + ": image too large (" + std::to_string(w) + "x" + std::to_string(h) + ")");
   }
@@ -167,81 +274,26 @@ Image decode_image(const std::string& bytes, const std::string& name, const Imag
 }
 
 Image read_image(const std::string& path, const ImageReadOptions& options) {
+  {
+    // PNG is read straight from the file; anything else (or a file that cannot be opened, so that
+    // read_file reports why) goes through memory.
+    std::ifstream in(path, std::ios::binary);
+    char signature[8];
+    if (in && in.read(signature, 8) && has_png_signature(signature, 8)) {
+      in.close();
+      return read_png_file(path, options);
+    }
+  }
   return decode_image(read_file(path), path, options);
 }
 
-namespace {
-
-void append_to_string(void* context, void* data, int size) {
-  static_cast<std::string*>(context)->append(static_cast<const char*>(data), std::size_t(size));
-}
-
-struct PngMemory {
-  std::string bytes;
-};
-
-void png_write_to_string(png_structp png, png_bytep data, png_size_t length) {
-  auto* out = static_cast<PngMemory*>(png_get_io_ptr(png));
-  out->bytes.append(reinterpret_cast<const char*>(data), length);
-}
-
-std::string encode_png16(const Image& image) {
-  png_structp png = png_create_write_struct(PNG_LIBPNG_VER_STRING, nullptr, nullptr, nullptr);
-  if (!png) throw data_error("png: cannot create writer");
-  png_infop info = png_create_info_struct(png);
-  if (!info) {
-    png_destroy_write_struct(&png, nullptr);
-    throw data_error("png: cannot create writer");
-  }
-  PngMemory memory;
-  // Rows in PNG byte order (big-endian samples).
-  const std::size_t row_samples = std::size_t(image.width) * image.channels;
-  std::vector<std::uint8_t> buffer(row_samples * 2 * image.height);
-  for (std::size_t i = 0; i < image.samples.size(); ++i) {
-    buffer[2 * i] = static_cast<std::uint8_t>(image.samples[i] >> 8);
-    buffer[2 * i + 1] = static_cast<std::uint8_t>(image.samples[i] & 0xff);
-  }
-  std::vector<png_bytep> rows(image.height);
-  for (int y = 0; y < image.height; ++y) rows[y] = buffer.data() + std::size_t(y) * row_samples * 2;
-  static const int color_types[] = {0, PNG_COLOR_TYPE_GRAY, PNG_COLOR_TYPE_GRAY_ALPHA, PNG_COLOR_TYPE_RGB,
-                                    PNG_COLOR_TYPE_RGB_ALPHA};
-  if (setjmp(png_jmpbuf(png))) {
-    png_destroy_write_struct(&png, &info);
-    throw data_error("png: encoding failed");
-  }
-  png_set_write_fn(png, &memory, png_write_to_string, nullptr);
-  png_set_IHDR(png, info, image.width, image.height, 16, color_types[image.channels], PNG_INTERLACE_NONE,
-               PNG_COMPRESSION_TYPE_DEFAULT, PNG_FILTER_TYPE_DEFAULT);
-  png_write_info(png, info);
-  png_write_image(png, rows.data());
-  png_write_end(png, nullptr);
-  png_destroy_write_struct(&png, &info);
-  return std::move(memory.bytes);
-}
-
-}  // namespace
-
 std::string encode_png(const Image& image) {
-  if (image.channels < 1 || image.channels > 4) throw data_error("png: cannot store " +
-                                                                 std::to_string(image.channels) + " channels");
-  if (image.bit_depth == 16) return encode_png16(image);
-  std::vector<std::uint8_t> bytes(image.samples.begin(), image.samples.end());
-  std::string out;
-  if (!stbi_write_png_to_func(append_to_string, &out, image.width, image.height, image.channels, bytes.data(),
-                              image.width * image.channels)) {
-    throw data_error("png: encoding failed");
-  }
-  return out;
+  PngWriteOptions options;
+  options.level = 6;
+  options.filter = PngFilter::adaptive;
+  return encode_png(image, options);
 }
 
-void write_png(const std::string& path, const Image& image) {
-  std::string bytes;
-  try {
-    bytes = encode_png(image);
-  } catch (const Error& e) {
-    throw data_error(path + ": " + e.what());
-  }
-  write_file_atomic(path, bytes);
-}
+void write_png(const std::string& path, const Image& image) { write_png(path, image, PngWriteOptions{}); }
 
 }  // namespace pcasweep

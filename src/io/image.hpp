@@ -3,10 +3,12 @@
 // Contract: an Image holds integer samples in their native scale (0..255 for
 // 8-bit, 0..65535 for 16-bit), interleaved, row-major: the sample of channel c
 // at column x, row y is samples[(y * width + x) * channels + c]. Readers take
-// PNG, JPEG, BMP, TGA and PNM (8- and 16-bit where the format has it) through
-// stb_image; writers produce PNG (8-bit through stb_image_write, 16-bit
-// through libpng, so 16-bit stays 16-bit). Every failure throws
-// pcasweep::Error(data) whose message starts with the file name.
+// PNG (libpng, streaming, strict: io/png.hpp), binary PNM (our own reader),
+// JPEG, BMP and TGA (stb_image), 8- and 16-bit where the format has it; writers
+// produce PNG through our encoder (io/png.hpp), 16-bit stays 16-bit. Every
+// reader checks the declared size from the header alone before allocating
+// (guard_declared_size). Every failure throws pcasweep::Error(data) whose
+// message starts with the file name.
 #pragma once
 
 #include <cstdint>
@@ -41,18 +43,39 @@ struct ImageReadOptions {
 // Largest image accepted, in samples (width*height*channels): 2^30, 8 GiB as doubles.
 inline constexpr std::size_t kMaxImageSamples = std::size_t(1) << 30;
 
-// Reads an image file. Returns the image with names for its channels.
-// Throws Error(data): missing file, unreadable, not an image, corrupt, too large.
+// Reads an image file. Returns the image with names for its channels. PNG files
+// are read by libpng straight from the file, row by row; other formats are read
+// whole into memory first.
+// Throws Error(data): missing file, unreadable, not an image, corrupt or truncated,
+// declared size above options.max_pixels or impossible for the file's size.
 Image read_image(const std::string& path, const ImageReadOptions& options = {});
 
-// Decodes an image held in memory; `name` is used in error messages.
+// Decodes an image held in memory (PNG through the same libpng reader as
+// read_image); `name` is used in error messages. Throws as read_image.
 Image decode_image(const std::string& bytes, const std::string& name,
                    const ImageReadOptions& options = {});
 
-// Returns the PNG encoding of `image` (8-bit: stb_image_write; 16-bit: libpng).
+// The size guard every reader applies from the header alone, before allocating
+// the image. `name` names the file, width×height is the declared size.
+// Throws Error(data) "NAME: declares WxH = M Mpixel, above --max-pixels (N); ..."
+// when width·height > max_pixels, and "NAME: declares WxH pixels, which needs at
+// least B bytes even at WHY, but the file holds F bytes: ..." when file_bytes <
+// min_file_bytes, the least any valid file of that format and size can take (the
+// caller derives it from the format's maximum compression; `why` names that bound).
+void guard_declared_size(const std::string& name, std::uint64_t width, std::uint64_t height,
+                         std::uint64_t max_pixels, double min_file_bytes, std::uint64_t file_bytes,
+                         const std::string& why);
+
+// Returns the PNG encoding of `image` at zlib level 6 with adaptive filtering
+// (smaller than the fast default: it is the lossless-size baseline of the codec
+// study and the form embedded in report.html). Options: encode_png(image,
+// PngWriteOptions) in io/png.hpp. Throws Error(data) "png: ..." for an image PNG
+// cannot store (channels outside 1..4, bit depth not 8/16, 8-bit sample > 255).
 std::string encode_png(const Image& image);
 
-// Writes `image` as PNG to `path` atomically. Throws Error(data).
+// Writes `image` as PNG to `path` atomically with the fast default options
+// (PngWriteOptions{}: zlib level 1, io/png.hpp), streaming through PngRowWriter.
+// Throws Error(data) naming `path`.
 void write_png(const std::string& path, const Image& image);
 
 // Names for the channels of an image with `channels` channels:

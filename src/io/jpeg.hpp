@@ -1,22 +1,60 @@
-// pcasweep/io/jpeg.hpp — baseline JPEG (ITU-T T.81) through stb_image_write, for comparison only.
+// pcasweep/io/jpeg.hpp — baseline JPEG (ITU-T T.81) through libjpeg-turbo, for comparison.
 //
-// Contract: encode_jpeg() returns the bytes stbi_write_jpg_to_func produces for
-// an 8-bit gray or RGB image at `quality` (1..100, stb's scale: IJG-style
-// scaling of the Annex K tables). A 16-bit image is first reduced to 8 bits
-// (v8 = (v + 128) / 257, integer division); images with alpha are refused (JPEG has no alpha).
-// Throws Error(usage) for an unsupported image, Error(data) if stb fails.
+// Contract: encode_jpeg() compresses an 8-bit gray or RGB image (a 16-bit one is
+// first reduced to 8 bits: v8 = (v + 128) / 257, integer division) with
+// libjpeg's standard tables scaled by `quality` (1..100, the IJG scale),
+// optimised Huffman tables, and for RGB either 4:2:0 or 4:4:4 chroma sampling
+// (YCbCr); gray stays one component. It reads the image row by row and holds
+// only the compressed bytes and libjpeg's own working rows. JpegRowReader
+// decodes JPEG bytes row by row (any libjpeg warning, such as a premature end
+// of data, is an error): the measurement of a JPEG point never holds a
+// decoded image. Images with alpha are refused (JPEG has none).
+// Errors: Error(usage) for an unsupported image or quality, Error(data) naming
+// the stream for a libjpeg failure; libjpeg's own exit() is never reached.
 #pragma once
 
+#include <cstdint>
+#include <memory>
 #include <string>
+#include <string_view>
 
 #include "io/image.hpp"
 
 namespace pcasweep {
 
-// image: W×H, 1 or 3 channels, 8 or 16 bit; quality 1..100. Returns the JPEG file bytes.
+struct JpegOptions {
+  int quality = 90;          // 1..100
+  bool chroma_420 = true;    // RGB: chroma subsampled 2×2 (4:2:0); false: 4:4:4
+  bool optimize = true;      // optimised Huffman tables (a second pass over the coefficients)
+};
+
+// image: W×H, 1 or 3 channels, 8 or 16 bit. Returns the JPEG file bytes.
+std::string encode_jpeg(const Image& image, const JpegOptions& options);
+
+// The same with `quality` and the other options at their defaults.
 std::string encode_jpeg(const Image& image, int quality);
 
 // True if encode_jpeg() accepts images with this many channels (1 or 3).
 inline bool jpeg_supports_channels(int channels) { return channels == 1 || channels == 3; }
+
+// Decodes a JPEG held in memory row by row, as 8-bit samples in our uint16 layout.
+class JpegRowReader {
+ public:
+  // bytes: must outlive the reader; name: used in errors. Reads the header.
+  JpegRowReader(std::string_view bytes, const std::string& name);
+  ~JpegRowReader();
+  JpegRowReader(const JpegRowReader&) = delete;
+  JpegRowReader& operator=(const JpegRowReader&) = delete;
+  int width() const;
+  int height() const;
+  int channels() const;  // 1 (gray) or 3 (RGB)
+  // Decodes up to `rows` further rows into out (rows × width × channels samples, 0..255).
+  // Returns the rows decoded (0 after the last). Throws Error(data) on a damaged stream.
+  int read_rows(std::uint16_t* out, int rows);
+
+ private:
+  struct State;
+  std::unique_ptr<State> state_;
+};
 
 }  // namespace pcasweep
