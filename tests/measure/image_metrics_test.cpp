@@ -1,8 +1,12 @@
 // Tests for measure/image_metrics: worked values of the standard definitions.
 #include <doctest/doctest.h>
 
+#include <omp.h>
+
+#include <algorithm>
 #include <cmath>
 #include <limits>
+#include <vector>
 
 #include "../support/synthetic.hpp"
 #include "core/error.hpp"
@@ -104,4 +108,123 @@ TEST_CASE("metrics: mismatched images are refused") {
   CHECK_THROWS_AS(compare_images(flat(4, 4, 1, 8, 0), flat(4, 5, 1, 8, 0)), Error);
   CHECK_THROWS_AS(compare_images(flat(4, 4, 1, 8, 0), flat(4, 4, 3, 8, 0)), Error);
   CHECK_THROWS_AS(compare_images(flat(4, 4, 1, 8, 0), flat(4, 4, 1, 16, 0)), Error);
+}
+
+// ---- QualityAccumulator: exact integer sums ----
+
+namespace {
+
+// A scene and a copy with errors up to ±spread (clipped), deterministic.
+void noisy_pair(int w, int h, int c, int bits, std::uint64_t seed, int spread, Image& x, Image& y) {
+  x = scene_image(w, h, c, bits, seed);
+  y = x;
+  pcasweep::testing::SplitMix64 rng(seed + 99);
+  const int top = bits == 16 ? 65535 : 255;
+  for (auto& s : y.samples) {
+    const int e = int(rng.next() % std::uint64_t(2 * spread + 1)) - spread;
+    s = std::uint16_t(std::clamp(int(s) + e, 0, top));
+  }
+}
+
+void check_same(const ImageQuality& a, const ImageQuality& b) {
+  CHECK(a.mse == b.mse);
+  CHECK(a.rmse == b.rmse);
+  CHECK(a.psnr_db == b.psnr_db);
+  CHECK(a.max_abs_error == b.max_abs_error);
+  CHECK(a.relative_error == b.relative_error);
+  CHECK(a.channel_mse == b.channel_mse);
+  CHECK(a.channel_psnr_db == b.channel_psnr_db);
+}
+
+}  // namespace
+
+// Requirement: banded and whole give bit-identical results (integer sums).
+TEST_CASE("quality accumulator: any split into bands gives the whole-image figures bit for bit") {
+  for (int c : {1, 2, 3, 4, 5})
+    for (int bits : {8, 16}) {
+      CAPTURE(c);
+      CAPTURE(bits);
+      Image x, y;
+      noisy_pair(53, 31, c, bits, std::uint64_t(c * 3 + bits), bits == 16 ? 3000 : 12, x, y);
+      const ImageQuality whole = compare_images(x, y);
+      for (std::size_t band_pixels : {std::size_t(1), std::size_t(7), std::size_t(53), std::size_t(64 * 53), std::size_t(1000)}) {
+        QualityAccumulator acc(c, bits);
+        const std::size_t step = band_pixels * std::size_t(c), n = x.samples.size();
+        for (std::size_t i = 0; i < n; i += step)
+          acc.add(x.samples.data() + i, y.samples.data() + i, std::min(step, n - i));
+        CHECK(acc.pixels() == std::uint64_t(53 * 31));
+        check_same(acc.result(), whole);
+      }
+    }
+}
+
+// Source: the definitions in measure/image_metrics.hpp, evaluated here with
+// plain long double loops (exact for these integer sums) on an image large
+// enough to cross the accumulator's 2^20-sample blocks and its two-thread split.
+TEST_CASE("quality accumulator: exact sums on a large 16-bit image, 1 and 2 threads, inside a parallel region") {
+  Image x, y;
+  noisy_pair(1100, 1000, 1, 16, 5, 20000, x, y);
+  long double sq = 0, sum = 0, sum2 = 0, mx = 0;
+  for (std::size_t i = 0; i < x.samples.size(); ++i) {
+    const long double a = x.samples[i], e = a - (long double)y.samples[i];
+    sq += e * e, sum += a, sum2 += a * a, mx = std::max(mx, std::abs(e));
+  }
+  const long double n = (long double)x.samples.size();
+  const long double centred = sum2 - sum * sum / n;
+  const int saved = omp_get_max_threads();
+  omp_set_num_threads(1);
+  const ImageQuality one = compare_images(x, y);
+  omp_set_num_threads(2);
+  const ImageQuality two = compare_images(x, y);
+  omp_set_num_threads(saved);
+  check_same(one, two);
+  CHECK(one.mse == double(sq / n));
+  CHECK(one.max_abs_error == double(mx));
+  CHECK(one.relative_error == doctest::Approx(double(std::sqrt(sq / centred))).epsilon(1e-14));
+  std::vector<ImageQuality> inside(2);
+#pragma omp parallel for num_threads(2) schedule(static)
+  for (int k = 0; k < 2; ++k) inside[std::size_t(k)] = compare_images(x, y);
+  check_same(inside[0], one);
+  check_same(inside[1], one);
+}
+
+TEST_CASE("quality accumulator: merge pools like compare_image_sets, in any order") {
+  Image a, b, c, d;
+  noisy_pair(40, 30, 3, 8, 1, 10, a, b);
+  noisy_pair(25, 50, 3, 8, 2, 30, c, d);
+  const ImageQuality pooled = compare_image_sets({a, c}, {b, d});
+  QualityAccumulator first(3, 8), second(3, 8);
+  first.add(a.samples.data(), b.samples.data(), a.samples.size());
+  second.add(c.samples.data(), d.samples.data(), c.samples.size());
+  QualityAccumulator ab = first, ba = second;
+  ab.merge(second);
+  ba.merge(first);
+  check_same(ab.result(), pooled);
+  check_same(ba.result(), pooled);
+  CHECK(ab.pixels() == 40 * 30 + 25 * 50);
+  // Pooling keeps each image's own channel means for relative_error (the
+  // contract of compare_image_sets): the same as summing each image's
+  // ‖x − x̄‖² computed alone.
+  const double ca = std::pow(compare_images(a, b).relative_error, -2) * compare_images(a, b).mse * 3600;
+  const double cc = std::pow(compare_images(c, d).relative_error, -2) * compare_images(c, d).mse * 3750;
+  const double total_sq = pooled.mse * (3600 + 3750);
+  CHECK(pooled.relative_error == doctest::Approx(std::sqrt(total_sq / (ca + cc))).epsilon(1e-12));
+  CHECK_THROWS_AS(ab.merge(QualityAccumulator(1, 8)), Error);
+  CHECK_THROWS_AS(ab.merge(QualityAccumulator(3, 16)), Error);
+}
+
+TEST_CASE("quality accumulator: identical images give PSNR +inf; bad input is refused") {
+  const Image a = scene_image(19, 13, 4, 16, 3);
+  QualityAccumulator acc(4, 16);
+  acc.add(a.samples.data(), a.samples.data(), a.samples.size());
+  const ImageQuality q = acc.result();
+  CHECK(q.mse == 0.0);
+  CHECK(q.relative_error == 0.0);
+  CHECK(std::isinf(q.psnr_db));
+  CHECK(q.psnr_db > 0.0);
+  for (double p : q.channel_psnr_db) CHECK(std::isinf(p));
+  CHECK_THROWS_AS(acc.add(a.samples.data(), a.samples.data(), 6), Error);  // 1.5 pixels
+  CHECK_THROWS_AS(QualityAccumulator(0, 8), Error);
+  CHECK_THROWS_AS(QualityAccumulator(3, 12), Error);
+  CHECK(std::isinf(QualityAccumulator(3, 8).result().psnr_db));  // nothing added: mse 0
 }
