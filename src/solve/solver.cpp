@@ -119,20 +119,29 @@ bool precision_suffices(const Basis& basis, double unit_roundoff) {
   return variance_beyond_rank(basis) >= kSingleTailMargin * unit_roundoff * basis.total_variance;
 }
 
-Basis solve(const Eigen::MatrixXd& X, const SolverSettings& settings) {
-  Plan plan = plan_solve(X.rows(), X.cols(), settings);
-  if (plan.choice == SolverChoice::randomized && settings.precision == Precision::single_precision) {
-    const SingleOperator single(X);
-    const double ratio = single.offset_ratio();
+bool uses_single_precision(Eigen::Index n, Eigen::Index d, const SolverSettings& settings) {
+  return settings.precision == Precision::single_precision &&
+         plan_solve(n, d, settings).choice == SolverChoice::randomized;
+}
+
+namespace {
+// The single-precision rules of solve(X, settings): `single` first when the
+// plan and the data allow it, else (or when its tail is below float32's
+// resolution) run_double(plan) — built only then.
+template <class RunDouble>
+Basis solve_with_precision(Eigen::Index n, Eigen::Index d, const CenteredOperator* single, double ratio,
+                           const SolverSettings& settings, RunDouble&& run_double) {
+  Plan plan = plan_solve(n, d, settings);
+  if (plan.choice == SolverChoice::randomized && settings.precision == Precision::single_precision && single) {
     char buf[320];
     if (ratio <= kSingleOffsetLimit) {
-      Basis basis = run(single, plan, settings);
-      if (precision_suffices(basis, single.unit_roundoff())) return basis;
+      Basis basis = run(*single, plan, settings);
+      if (precision_suffices(basis, single->unit_roundoff())) return basis;
       std::snprintf(buf, sizeof buf,
                     "; double-precision products after a single-precision solve: the variance beyond rank %ld "
                     "(%.2g of the total) is below what float32 products resolve (%g times their rounding, %.2g)",
                     long(plan.rank), variance_beyond_rank(basis) / basis.total_variance, kSingleTailMargin,
-                    single.unit_roundoff());
+                    single->unit_roundoff());
     } else {
       std::snprintf(buf, sizeof buf,
                     "; double-precision products although single was asked: the data's mean makes it %.3g times "
@@ -141,7 +150,21 @@ Basis solve(const Eigen::MatrixXd& X, const SolverSettings& settings) {
     }
     plan.reason += buf;
   }
-  return run(DenseOperator(X), plan, settings);
+  return run_double(plan);
+}
+}  // namespace
+
+Basis solve(const CenteredOperator& op, const CenteredOperator* single, double ratio, const SolverSettings& settings) {
+  return solve_with_precision(op.rows(), op.cols(), single, ratio, settings,
+                              [&](const Plan& plan) { return run(op, plan, settings); });
+}
+
+Basis solve(const Eigen::MatrixXd& X, const SolverSettings& settings) {
+  const auto run_dense = [&](const Plan& plan) { return run(DenseOperator(X), plan, settings); };
+  if (!uses_single_precision(X.rows(), X.cols(), settings))
+    return solve_with_precision(X.rows(), X.cols(), nullptr, 1.0, settings, run_dense);
+  const SingleOperator single(X);
+  return solve_with_precision(X.rows(), X.cols(), &single, single.offset_ratio(), settings, run_dense);
 }
 
 }  // namespace pcasweep

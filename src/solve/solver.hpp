@@ -94,6 +94,17 @@ Basis solve(const CenteredOperator& op, const SolverSettings& settings);
 // (kSingleTailMargin): always true for double.
 bool precision_suffices(const Basis& basis, double unit_roundoff);
 
+// True when solve() would run single-precision products for N×d data: the
+// randomized solver is chosen and settings.precision is single. Throws as solve().
+bool uses_single_precision(Eigen::Index n, Eigen::Index d, const SolverSettings& settings);
+
+// op: the data with double products; single: the same data with
+// single-precision products (null when uses_single_precision() is false),
+// whose offset ratio ‖A‖_F/‖A_c‖_F is `offset_ratio`. Runs the rules of
+// solve(X, settings) below over these operators. Throws as solve().
+Basis solve(const CenteredOperator& op, const CenteredOperator* single, double offset_ratio,
+            const SolverSettings& settings);
+
 // X: N×d observations (not centred). As above over DenseOperator(X), or over
 // SingleOperator(X) (a float32 copy, N·d·4 bytes more) when the randomized
 // solver runs, settings.precision is single and the data allow it: their
