@@ -2,7 +2,10 @@
 
 #include <charconv>
 
+#include <omp.h>
+
 #include "core/error.hpp"
+#include "observe/patch_folder.hpp"
 
 namespace pcasweep {
 
@@ -123,54 +126,63 @@ Eigen::MatrixXd PatchLayout::observe(const std::vector<Image>& sources) const {
   return X;
 }
 
-std::vector<Raster> PatchLayout::fold(const Eigen::MatrixXd& X) const {
-  if (X.rows() != observation_count() || X.cols() != dimension()) {
-    throw usage_error("fold: observation matrix has the wrong shape");
+void PatchLayout::observe_band(const Image& image, int py0, int py1, Band& band) const {
+  if (image.width != width_ || image.height != height_ || image.channels != channels_) {
+    throw usage_error("patch layout built for another image size");
   }
-  const int ph = options_.patch_height, pw = options_.patch_width;
-  const bool joint = options_.colour == ColourMode::joint;
-  const Eigen::Index patches = Eigen::Index(nx_) * ny_;
-  // Accumulate on the padded canvas, then crop. Rows of the canvas are
-  // written by patches whose rows overlap, so parallelise over bands of
-  // patch rows that cannot overlap: a patch row touches canvas rows
-  // [py*sy, py*sy+ph), so rows py and py+m with m*sy >= ph are disjoint.
-  const std::size_t canvas_size = std::size_t(padded_w_) * padded_h_ * channels_;
-  std::vector<double> sum(canvas_size, 0.0);
-  std::vector<double> weight(std::size_t(padded_w_) * padded_h_, 0.0);
-  const int spacing = (ph + options_.stride_y - 1) / options_.stride_y;
-  for (int phase = 0; phase < spacing; ++phase) {
-#pragma omp parallel for schedule(static)
-    for (int py = phase; py < ny_; py += spacing) {
+  if (py0 < 0 || py1 > ny_ || py0 >= py1) throw usage_error("observe_band: patch rows out of range");
+  const int ph = options_.patch_height, pw = options_.patch_width, rows = py1 - py0;
+  const int planes = this->planes();
+  const Eigen::Index d = dimension();
+  band.resize(Eigen::Index(rows) * nx_ * planes, d);
+  // Columns of each patch cell, mirror-reflected once per band (they repeat every patch row).
+  std::vector<int> xs(std::size_t(nx_) * pw);
+  for (int px = 0; px < nx_; ++px)
+    for (int c = 0; c < pw; ++c) xs[std::size_t(px) * pw + c] = reflect_index(long(px) * options_.stride_x + c, width_);
+#pragma omp parallel for schedule(static) if (!omp_in_parallel() && rows * nx_ >= 64)
+  for (int py = py0; py < py1; ++py) {
+    for (int r = 0; r < ph; ++r) {
+      const int y = reflect_index(long(py) * options_.stride_y + r, height_);
+      const std::uint16_t* row = image.samples.data() + std::size_t(y) * width_ * channels_;
       for (int px = 0; px < nx_; ++px) {
-        const Eigen::Index patch = Eigen::Index(py) * nx_ + px;
-        for (int r = 0; r < ph; ++r) {
-          const std::size_t y = std::size_t(py) * options_.stride_y + r;
+        const int* xc = xs.data() + std::size_t(px) * pw;
+        if (planes == 1) {
+          double* out = band.row(band_row(0, py, px, py0, rows)).data() + std::size_t(r) * pw * channels_;
           for (int c = 0; c < pw; ++c) {
-            const std::size_t x = std::size_t(px) * options_.stride_x + c;
-            const std::size_t pixel = y * padded_w_ + x;
-            const Eigen::Index cell = Eigen::Index(r) * pw + c;
-            weight[pixel] += 1.0;
-            for (int ch = 0; ch < channels_; ++ch) {
-              sum[pixel * channels_ + ch] +=
-                  joint ? X(patch, cell * channels_ + ch) : X(Eigen::Index(ch) * patches + patch, cell);
-            }
+            const std::uint16_t* s = row + std::size_t(xc[c]) * channels_;
+            for (int ch = 0; ch < channels_; ++ch) *out++ = s[ch];
+          }
+        } else {
+          for (int ch = 0; ch < channels_; ++ch) {
+            double* out = band.row(band_row(ch, py, px, py0, rows)).data() + std::size_t(r) * pw;
+            for (int c = 0; c < pw; ++c) out[c] = row[std::size_t(xc[c]) * channels_ + ch];
           }
         }
       }
     }
   }
+}
+
+std::vector<Raster> PatchLayout::fold(const Eigen::MatrixXd& X) const {
+  if (X.rows() != observation_count() || X.cols() != dimension()) {
+    throw usage_error("fold: observation matrix has the wrong shape");
+  }
+  // One band holding every patch row, folded by PatchFolder: the arithmetic
+  // the streaming sweep uses, so both give the same samples.
+  PatchLayout::Band band(X.rows(), X.cols());
+  const int planes = this->planes();
+  for (int plane = 0; plane < planes; ++plane)
+    for (int py = 0; py < ny_; ++py)
+      for (int px = 0; px < nx_; ++px)
+        band.row(band_row(plane, py, px, 0, ny_)) = X.row(observation_row(plane, py, px));
+  PatchFolder folder(*this);
+  folder.add(0, ny_, band);
   Raster out;
   out.width = width_;
   out.height = height_;
   out.channels = channels_;
   out.samples.resize(std::size_t(width_) * height_ * channels_);
-#pragma omp parallel for schedule(static)
-  for (int y = 0; y < height_; ++y)
-    for (int x = 0; x < width_; ++x) {
-      const std::size_t pixel = std::size_t(y) * padded_w_ + x;
-      for (int ch = 0; ch < channels_; ++ch)
-        out.samples[(std::size_t(y) * width_ + x) * channels_ + ch] = sum[pixel * channels_ + ch] / weight[pixel];
-    }
+  folder.take(out.samples.data(), folder.ready_rows());
   return {out};
 }
 

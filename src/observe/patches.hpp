@@ -10,11 +10,15 @@
 //   channels colour: each channel's patches are separate observations sharing
 //                    one basis, d = ph·pw, N = patches·c (channel-major).
 // Overlapping patches (stride < patch) are averaged when folded back.
+// Streaming: observe_band() cuts one band of patch rows at a time and
+// PatchFolder (observe/patch_folder.hpp) folds bands back into image rows, so
+// an image can be swept without ever holding its N×d observation matrix.
 #pragma once
 
 #include <memory>
 
 #include "observe/layout.hpp"
+#include "observe/observation_blocks.hpp"
 
 namespace pcasweep {
 
@@ -49,6 +53,31 @@ class PatchLayout : public Layout {
   ObservationShape observation_shape() const override {
     return {options_.patch_width, options_.patch_height, options_.colour == ColourMode::joint ? channels_ : 1};
   }
+
+  // Observations of one band of patch rows, stored row-major so that one patch
+  // (d values) is contiguous.
+  using Band = RowBlock;
+  // image: the geometry this layout was built for; patch rows [py0, py1) with
+  // 0 <= py0 < py1 <= patches_down(). Fills `band` with (py1−py0)·nx·planes()
+  // rows × d: plane after plane, within a plane patch row after patch row,
+  // left to right — observe()'s row order restricted to those patch rows
+  // (band_row() maps one to the other). Reuses band's storage when it fits.
+  // Throws Error(usage) for another geometry or a bad range.
+  void observe_band(const Image& image, int py0, int py1, Band& band) const;
+  // Row of observation (plane, patch row py, patch column px) in a band of
+  // `band_rows` patch rows starting at py0.
+  Eigen::Index band_row(int plane, int py, int px, int py0, int band_rows) const {
+    return (Eigen::Index(plane) * band_rows + (py - py0)) * nx_ + px;
+  }
+  // Row of the same observation in observe()'s X: plane·(nx·ny) + py·nx + px.
+  Eigen::Index observation_row(int plane, int py, int px) const {
+    return Eigen::Index(plane) * (Eigen::Index(nx_) * ny_) + Eigen::Index(py) * nx_ + px;
+  }
+  // 1 for joint colour (a patch holds every channel), c for channels colour.
+  int planes() const { return options_.colour == ColourMode::joint ? 1 : channels_; }
+  int width() const { return width_; }
+  int height() const { return height_; }
+  int channels() const { return channels_; }
 
   const PatchOptions& options() const { return options_; }
   int padded_width() const { return padded_w_; }
