@@ -206,6 +206,50 @@ void code_all(RC& rc, std::vector<std::int32_t>& q, std::size_t m, const Coeffic
   }
 }
 
+// Patch-row coding (the file's order): the contexts of code_all() from the
+// current row (planes × nx × m) and the previous one.
+struct RowContext {
+  std::size_t m, nx, ny, planes;
+  std::vector<std::int32_t> previous, current;  // planes × nx × m
+  std::vector<std::uint64_t> sum, count;        // per component, as in code_all()
+  std::size_t row = 0;                          // patch rows done
+  Models models;
+  RowContext(std::size_t m_, const CoefficientGrid& g)
+      : m(m_), nx(g.patches_across), ny(g.patches_down), planes(g.planes),
+        previous(g.planes * g.patches_across * m_, 0), current(previous.size(), 0), sum(m_, 0), count(m_, 0) {}
+};
+
+template <class RC>
+void code_row(RC& rc, RowContext& s, const std::string& name) {
+  if (s.row >= s.ny) throw usage_error("internal: more patch rows coded than the image has");
+  const std::size_t m = s.m, nx = s.nx;
+  for (std::size_t p = 0; p < s.planes; ++p) {
+    std::int32_t* cur = s.current.data() + p * nx * m;
+    const std::int32_t* up = s.previous.data() + p * nx * m;
+    const std::int32_t* below_plane = p > 0 ? s.current.data() + (p - 1) * nx * m : nullptr;
+    for (std::size_t px = 0; px < nx; ++px)
+      for (std::size_t j = 0; j < m; ++j) {
+        const std::size_t at = px * m + j;
+        const std::int32_t L = px > 0 ? cur[at - m] : 0, U = s.row > 0 ? up[at] : 0;
+        std::uint64_t act = 2 * mag(L) + 2 * mag(U);
+        if (j >= 1) act += mag(cur[at - 1]);
+        if (j >= 2) act += mag(cur[at - 2]);
+        if (below_plane) act += 2 * mag(below_plane[at]);
+        Context c;
+        c.band = band_of(j);
+        c.act = log_bucket(act, kActs - 1);
+        c.scale = log_bucket(16 * s.sum[j] / (s.count[j] + 1), kScales - 1);
+        c.sign_ctx = sign3(L) * 3 + sign3(U);
+        const std::int32_t v = code_value(rc, s.models, c, cur[at], name);
+        cur[at] = v;
+        s.sum[j] += mag(v);
+        ++s.count[j];
+      }
+  }
+  std::swap(s.previous, s.current);
+  ++s.row;
+}
+
 template <class RC>
 void code_column_entries(RC& rc, std::vector<std::int16_t>& v, std::size_t d, std::size_t m, const std::string& name) {
   Models M;
@@ -245,6 +289,50 @@ std::vector<std::int32_t> decode_coefficients(std::string_view bytes, std::size_
   code_all(rc, q, m, grid, order, name);
   rc.finish();
   return q;
+}
+
+struct CoefficientRowEncoder::State {
+  RowContext context;
+  Encoder rc;
+  State(std::size_t m, const CoefficientGrid& g) : context(m, g) {}
+};
+
+CoefficientRowEncoder::CoefficientRowEncoder(std::size_t m, const CoefficientGrid& grid) : state_(new State(m, grid)) {}
+CoefficientRowEncoder::~CoefficientRowEncoder() { delete state_; }
+
+void CoefficientRowEncoder::add_row(const std::int32_t* q) {
+  RowContext& s = state_->context;
+  std::copy(q, q + s.current.size(), s.current.begin());
+  code_row(state_->rc, s, "encoder");
+}
+
+std::string CoefficientRowEncoder::finish() {
+  if (state_->context.row != state_->context.ny) throw usage_error("internal: coefficient rows missing before finish()");
+  return state_->rc.finish();
+}
+
+struct CoefficientRowDecoder::State {
+  std::string name;  // first: the Decoder keeps a reference to it
+  RowContext context;
+  Decoder rc;
+  State(std::string_view bytes, std::size_t m, const CoefficientGrid& g, const std::string& n)
+      : name(n), context(m, g), rc(bytes, name) {}
+};
+
+CoefficientRowDecoder::CoefficientRowDecoder(std::string_view bytes, std::size_t m, const CoefficientGrid& grid,
+                                             const std::string& name)
+    : state_(new State(bytes, m, grid, name)) {}
+CoefficientRowDecoder::~CoefficientRowDecoder() { delete state_; }
+
+void CoefficientRowDecoder::next_row(std::int32_t* q) {
+  RowContext& s = state_->context;
+  code_row(state_->rc, s, state_->name);
+  std::copy(s.previous.begin(), s.previous.end(), q);  // code_row swapped the finished row into `previous`
+}
+
+void CoefficientRowDecoder::finish() {
+  if (state_->context.row != state_->context.ny) throw data_error(state_->name + ": coefficient rows missing");
+  state_->rc.finish();
 }
 
 std::string code_columns(const std::vector<std::int16_t>& v, std::size_t d) {

@@ -35,7 +35,12 @@
 // the others: (e, bit position).
 // Order: component-major (all N coefficients of one component, then the next)
 // or patch-major (all m coefficients of one patch, then the next); the
-// contexts are the same in both, only the adaptation order differs.
+// contexts are the same in both, only the adaptation order differs. The file
+// (container version 3) uses the row order of CoefficientRowEncoder: patch
+// row after patch row, and within a patch row plane after plane, patches left
+// to right, each patch's m values; for one plane (joint colour) that is the
+// patch-major order exactly. It lets a whole image be coded and decoded one
+// band of patch rows at a time, holding two patch rows of coefficients.
 //
 // Range coder: 32-bit range, 64-bit low with carry propagation through a
 // cached byte (the classic carry-less-output scheme), 16-bit probabilities
@@ -76,6 +81,45 @@ std::string code_coefficients(const std::vector<std::int32_t>& q, std::size_t m,
 // Returns the N·m integers. Throws Error(data) naming `name` on a malformed stream.
 std::vector<std::int32_t> decode_coefficients(std::string_view bytes, std::size_t m, const CoefficientGrid& grid,
                                               CodingOrder order, const std::string& name);
+
+// Codes the coefficients of one image patch row by patch row, in the file's
+// row order (above), with the contexts of code_coefficients().
+class CoefficientRowEncoder {
+ public:
+  // m ≥ 0 components per observation; grid: the image's patch grid.
+  CoefficientRowEncoder(std::size_t m, const CoefficientGrid& grid);
+  // q: the next patch row, planes × patches_across × m values (plane, then
+  // patch, then component). Throws Error(usage) after the last row.
+  void add_row(const std::int32_t* q);
+  // After every patch row: the coded bytes. Throws Error(usage) before.
+  std::string finish();
+  ~CoefficientRowEncoder();
+  CoefficientRowEncoder(const CoefficientRowEncoder&) = delete;
+  CoefficientRowEncoder& operator=(const CoefficientRowEncoder&) = delete;
+
+ private:
+  struct State;
+  State* state_;
+};
+
+// Its inverse, over an untrusted stream (same guarantees as decode_coefficients()).
+class CoefficientRowDecoder {
+ public:
+  // bytes: must outlive the decoder; `name` is used in messages.
+  CoefficientRowDecoder(std::string_view bytes, std::size_t m, const CoefficientGrid& grid, const std::string& name);
+  // Fills q (planes × patches_across × m values) with the next patch row.
+  // Throws Error(data) on a malformed stream, Error(usage) after the last row.
+  void next_row(std::int32_t* q);
+  // After every row: throws Error(data) unless the stream ended exactly.
+  void finish();
+  ~CoefficientRowDecoder();
+  CoefficientRowDecoder(const CoefficientRowDecoder&) = delete;
+  CoefficientRowDecoder& operator=(const CoefficientRowDecoder&) = delete;
+
+ private:
+  struct State;
+  State* state_;
+};
 
 // The basis entries (column after column, d each; 12-bit values in int16) with the same
 // binarisation; contexts: magnitudes of the two previous entries of the column and of

@@ -105,28 +105,31 @@ CoefficientGrid coefficient_grid(const CodedImage& c) {
   return g;
 }
 
-std::string write_container(const CodedImage& c, int zstd_level) {
+namespace {
+void check_parts(const CodedImage& c, bool with_coefficients) {
   const std::size_t m = c.coded();
   const bool has_mean = c.basis_kind != BasisKind::external;
   const bool has_columns = c.basis_kind == BasisKind::embedded;
   if (c.steps.size() != m || (has_mean && c.mean_fixed.size() != c.dimension) ||
       (has_columns && (c.column_scale.size() != m || c.column_fixed.size() != std::size_t(c.dimension) * m)) ||
-      c.coefficients.size() != std::size_t(c.observations) * m) {
+      (with_coefficients && c.coefficients.size() != std::size_t(c.observations) * m)) {
     throw usage_error("internal: coded image parts disagree with its header");
   }
+}
+
+std::string assemble(const CodedImage& c, int zstd_level, std::string_view coefficient_stream) {
+  const std::size_t m = c.coded();
+  const bool has_mean = c.basis_kind != BasisKind::external;
+  const bool has_columns = c.basis_kind == BasisKind::embedded;
   const bool adaptive = c.coder == EntropyCoder::adaptive;
-  if (!adaptive && c.coder != EntropyCoder::varint_zstd && c.coder != EntropyCoder::planes_zstd) {
-    throw usage_error("internal: unknown entropy coder");
-  }
   std::string body;  // what the zstd frame holds
   put_array(body, c.component_index);
   put_array(body, c.steps);
   if (has_mean) put_array(body, c.mean_fixed);
   if (has_columns) put_array(body, c.column_scale);
-  std::string columns_stream, coefficient_stream;
+  std::string columns_stream;
   if (adaptive) {
     if (has_columns) columns_stream = code_columns(c.column_fixed, c.dimension);
-    coefficient_stream = code_coefficients(c.coefficients, m, coefficient_grid(c), CodingOrder::patch_major);
   } else {
     if (has_columns) put_array(body, c.column_fixed);
     body += pack_integers(c.coefficients, c.coder == EntropyCoder::varint_zstd ? Packing::varint : Packing::planes);
@@ -165,8 +168,53 @@ std::string write_container(const CodedImage& c, int zstd_level) {
   put<std::uint32_t>(out, crc32_of(out));
   return out;
 }
+}  // namespace
 
-CodedImage read_container(std::string_view bytes, const std::string& name) {
+std::string write_container_coded(const CodedImage& c, std::string_view coefficient_stream, int zstd_level) {
+  if (c.coder != EntropyCoder::adaptive) throw usage_error("internal: pre-coded coefficients need the adaptive coder");
+  check_parts(c, false);
+  return assemble(c, zstd_level, coefficient_stream);
+}
+
+std::string write_container(const CodedImage& c, int zstd_level) {
+  check_parts(c, true);
+  if (c.coder != EntropyCoder::adaptive && c.coder != EntropyCoder::varint_zstd && c.coder != EntropyCoder::planes_zstd) {
+    throw usage_error("internal: unknown entropy coder");
+  }
+  if (c.coder != EntropyCoder::adaptive) return assemble(c, zstd_level, {});
+  // The file's row order: per patch row, plane after plane, patch after patch, component after component.
+  const CoefficientGrid g = coefficient_grid(c);
+  const std::size_t m = c.coded(), n = g.observations(), nx = g.patches_across, per_plane = nx * g.patches_down;
+  CoefficientRowEncoder encoder(m, g);
+  std::vector<std::int32_t> row(g.planes * nx * m);
+  for (std::size_t py = 0; py < g.patches_down; ++py) {
+    for (std::size_t p = 0; p < g.planes; ++p)
+      for (std::size_t px = 0; px < nx; ++px)
+        for (std::size_t j = 0; j < m; ++j)
+          row[(p * nx + px) * m + j] = c.coefficients[j * n + p * per_plane + py * nx + px];
+    encoder.add_row(row.data());
+  }
+  return assemble(c, zstd_level, encoder.finish());
+}
+
+std::string with_components_asked(std::string_view file, std::uint32_t k) {
+  // Header offsets (docs/format.md): version at 4, k at 32, m at 36.
+  constexpr std::size_t kVersionAt = 4, kAskedAt = 32, kCodedAt = 36;
+  std::uint16_t version = 0;
+  std::uint32_t m = 0;
+  if (file.size() < kCodedImageHeaderSize + 4 || std::memcmp(file.data(), kCodedImageMagic, 4) != 0)
+    throw usage_error("internal: not a coded image");
+  std::memcpy(&version, file.data() + kVersionAt, 2);
+  std::memcpy(&m, file.data() + kCodedAt, 4);
+  if (version != kCodedImageVersion || k < m) throw usage_error("internal: cannot relabel this coded image");
+  std::string out(file);
+  std::memcpy(out.data() + kAskedAt, &k, 4);
+  const std::uint32_t crc = crc32_of(std::string_view(out).substr(0, out.size() - 4));
+  std::memcpy(out.data() + out.size() - 4, &crc, 4);
+  return out;
+}
+
+OpenedContainer open_container(std::string_view bytes, const std::string& name) {
   if (bytes.size() < 4 || std::memcmp(bytes.data(), kCodedImageMagic, 4) != 0) {
     throw data_error(name + ": not a pcasweep coded image (magic is not \"PSCI\")");
   }
@@ -174,8 +222,8 @@ CodedImage read_container(std::string_view bytes, const std::string& name) {
   Reader h(bytes, name, "header");
   h.get<std::uint32_t>();
   const auto version = h.get<std::uint16_t>();
-  if (version != kCodedImageVersion) {
-    throw data_error(name + ": format version " + std::to_string(version) + " is not supported (this build reads version " +
+  if (version != kCodedImageVersion && version != 2) {
+    throw data_error(name + ": format version " + std::to_string(version) + " is not supported (this build reads versions 2 and " +
                      std::to_string(kCodedImageVersion) + ")");
   }
   std::uint32_t stored_crc;
@@ -246,10 +294,6 @@ CodedImage read_container(std::string_view bytes, const std::string& name) {
     throw data_error(name + ": header declares N = " + std::to_string(c.observations) + " observations, the geometry gives " +
                      std::to_string(layout.observation_count()));
   }
-  if (std::uint64_t(c.observations) * d > kMaxDecodedValues) {
-    throw data_error(name + ": decoding would need " + std::to_string(std::uint64_t(c.observations) * d) +
-                     " values, above the cap of " + std::to_string(kMaxDecodedValues));
-  }
   if (m > d || c.k > d || m > c.k) {
     throw data_error(name + ": header declares " + std::to_string(m) + " coded of k = " + std::to_string(c.k) +
                      " components with d = " + std::to_string(d));
@@ -310,16 +354,52 @@ CodedImage read_container(std::string_view bytes, const std::string& name) {
     if (!(s > 0.0f) || !std::isfinite(s)) throw data_error(name + ": a quantiser step is not a positive number");
   for (float s : c.column_scale)
     if (!(s > 0.0f) || !std::isfinite(s)) throw data_error(name + ": a basis column scale is not a positive number");
+  OpenedContainer opened;
+  opened.version = version;
+  const std::string_view streams = bytes.substr(kCodedImageHeaderSize + frame_size);
   if (adaptive) {
-    const std::string_view streams = bytes.substr(kCodedImageHeaderSize + frame_size);
     if (has_columns) c.column_fixed = decode_columns(streams.substr(0, columns_size), std::size_t(d), m, name);
-    c.coefficients = decode_coefficients(streams.substr(columns_size, coefficients_size), m, coefficient_grid(c),
-                                         CodingOrder::patch_major, name);
-  } else {
-    c.coefficients = unpack_integers(b.rest(), std::size_t(count),
-                                     c.coder == EntropyCoder::varint_zstd ? Packing::varint : Packing::planes, name);
+    opened.coefficient_stream = streams.substr(columns_size, coefficients_size);
   }
-  return c;
+  const bool whole = !adaptive || (version == 2 && c.patch.colour == ColourMode::channels);
+  if (whole) {
+    if (count > kMaxDecodedValues) {
+      throw data_error(name + ": decoding would hold " + std::to_string(count) + " coefficients at once, above the cap of " +
+                       std::to_string(kMaxDecodedValues));
+    }
+    c.coefficients = adaptive ? decode_coefficients(opened.coefficient_stream, m, coefficient_grid(c),
+                                                    CodingOrder::patch_major, name)
+                              : unpack_integers(b.rest(), std::size_t(count),
+                                                c.coder == EntropyCoder::varint_zstd ? Packing::varint : Packing::planes, name);
+    opened.coefficients_decoded = true;
+    opened.coefficient_stream = {};
+  }
+  opened.image = std::move(c);
+  return opened;
+}
+
+CodedImage read_container(std::string_view bytes, const std::string& name) {
+  OpenedContainer opened = open_container(bytes, name);
+  CodedImage& c = opened.image;
+  if (opened.coefficients_decoded) return std::move(c);
+  const CoefficientGrid g = coefficient_grid(c);
+  const std::size_t m = c.coded(), n = g.observations(), nx = g.patches_across, per_plane = nx * g.patches_down;
+  if (std::uint64_t(n) * m > kMaxDecodedValues) {
+    throw data_error(name + ": decoding would hold " + std::to_string(std::uint64_t(n) * m) +
+                     " coefficients at once, above the cap of " + std::to_string(kMaxDecodedValues));
+  }
+  c.coefficients.assign(n * m, 0);
+  CoefficientRowDecoder decoder(opened.coefficient_stream, m, g, name);
+  std::vector<std::int32_t> row(g.planes * nx * m);
+  for (std::size_t py = 0; py < g.patches_down; ++py) {
+    decoder.next_row(row.data());
+    for (std::size_t p = 0; p < g.planes; ++p)
+      for (std::size_t px = 0; px < nx; ++px)
+        for (std::size_t j = 0; j < m; ++j)
+          c.coefficients[j * n + p * per_plane + py * nx + px] = row[(p * nx + px) * m + j];
+  }
+  decoder.finish();
+  return std::move(c);
 }
 
 }  // namespace pcasweep

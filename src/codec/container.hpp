@@ -24,7 +24,10 @@
 namespace pcasweep {
 
 inline constexpr char kCodedImageMagic[4] = {'P', 'S', 'C', 'I'};
-inline constexpr std::uint16_t kCodedImageVersion = 2;
+// Version 3 codes the coefficients in patch-row order (adaptive_coder.hpp),
+// so files are written and read one band at a time; version 2 (whole-image
+// patch-major order, different only in channels colour) is still read.
+inline constexpr std::uint16_t kCodedImageVersion = 3;
 inline constexpr std::size_t kCodedImageHeaderSize = 116;
 
 // Where the decoder finds the basis.
@@ -62,7 +65,30 @@ struct CodedImage {
 // if the vectors' sizes disagree with the header fields.
 std::string write_container(const CodedImage& image, int zstd_level);
 
-// Parses and validates `bytes` (untrusted). `name` is used in messages.
+// As write_container() for the adaptive coder, with the coefficients already
+// coded by a CoefficientRowEncoder over coefficient_grid(image) (image.coder
+// must be adaptive; image.coefficients is ignored).
+std::string write_container_coded(const CodedImage& image, std::string_view coefficient_stream, int zstd_level);
+
+// file: a coded image written by this build. Returns the same file recording
+// `k` as the components asked for (header field and CRC-32 rewritten): the
+// file of a larger k whose coded components are the same. Throws Error(usage)
+// when `file` is not a current-version container or k is below its coded count.
+std::string with_components_asked(std::string_view file, std::uint32_t k);
+
+// A coded file checked and parsed except for its range-coded coefficients.
+struct OpenedContainer {
+  CodedImage image;                     // all fields; coefficients only when `coefficients_decoded`
+  std::uint16_t version = 0;
+  bool coefficients_decoded = false;    // zstd coders and version 2 channels files: decoded whole
+  std::string_view coefficient_stream;  // otherwise: the stream for a CoefficientRowDecoder (views `bytes`)
+};
+
+// Parses and validates `bytes` (untrusted; must outlive the result). `name` is used in messages.
+OpenedContainer open_container(std::string_view bytes, const std::string& name);
+
+// Parses and validates `bytes` (untrusted) and decodes every coefficient
+// (image.coefficients, component-major). `name` is used in messages.
 CodedImage read_container(std::string_view bytes, const std::string& name);
 
 // Where each coded image's observations sit on the patch grid (contexts of the range coder).
@@ -80,6 +106,8 @@ std::string to_hex(const Sha256& digest);
 // Caps applied by every reader (a file declaring more is refused before allocation).
 inline constexpr std::uint32_t kMaxPatchSide = 1024;
 inline constexpr std::uint64_t kMaxDimension = 65536;                    // d
-inline constexpr std::uint64_t kMaxDecodedValues = std::uint64_t(1) << 28;  // N·d doubles while decoding
+// Coefficients held at once by read_container() (N·m int32); the band-wise
+// decoder (image_codec.hpp) holds two patch rows and has no such cap.
+inline constexpr std::uint64_t kMaxDecodedValues = std::uint64_t(1) << 28;
 
 }  // namespace pcasweep
