@@ -18,6 +18,8 @@
 
 #include "core/error.hpp"
 #include "pipeline/batch_detail.hpp"
+#include "observe/patch_blocks.hpp"
+#include "solve/blocked_operator.hpp"
 #include "solve/exact.hpp"
 #include "solve/scatter_sum.hpp"
 
@@ -42,14 +44,13 @@ ImageAnalysis observe_file(const std::string& path, const ImageStudySettings& se
   a.alpha_dropped = image.alpha_dropped;
   a.sources.push_back(std::move(image));
   a.layout = std::move(layout);
-  a.X = a.layout->observe(a.sources);
-  return a;
+  return a;  // streamed: the patches are cut band by band when they are used
 }
 
 void check_against_shared(const ImageAnalysis& a, const SharedBasisInfo& shared, int bit_depth,
                           const std::string& path) {
-  if (a.X.cols() != shared.dimension) {
-    throw data_error(path + ": " + std::to_string(a.X.cols()) + " variables per patch (" +
+  if (a.dimension() != shared.dimension) {
+    throw data_error(path + ": " + std::to_string(a.dimension()) + " variables per patch (" +
                      std::to_string(a.image().channels) + " channel(s)), the shared basis has " +
                      std::to_string(shared.dimension));
   }
@@ -207,12 +208,13 @@ BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settin
       try {
         ImageAnalysis a = observe_file(path, settings.image);
         if (!sum) {
-          sum = std::make_unique<ScatterSum>(a.X.cols());
-          shared.dimension = a.X.cols();
+          sum = std::make_unique<ScatterSum>(a.dimension());
+          shared.dimension = a.dimension();
           shared_bit_depth = a.image().bit_depth;
         }
         check_against_shared(a, shared, shared_bit_depth, path);
-        DenseOperator op(a.X);
+        const PatchBlocks blocks(*a.patches(), a.image());
+        const BlockedOperator<double> op(blocks);
         sum->add(op);
         shared.training_files.push_back(path);
         if (training_index[t] < n) result.files[training_index[t]].training = true;
@@ -274,7 +276,7 @@ BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settin
           if (result.shared) {
             const double raw = double(a.image().sample_count());
             for (auto& r : rows) {
-              r.stored_values = std::int64_t(a.X.rows()) * r.k;
+              r.stored_values = std::int64_t(a.observations()) * r.k;
               r.ratio = double(r.stored_values) / raw;
             }
           }
@@ -283,8 +285,8 @@ BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settin
           f.height = a.image().height;
           f.channels = a.image().channels;
           f.bit_depth = a.image().bit_depth;
-          f.observations = a.X.rows();
-          f.dimension = a.X.cols();
+          f.observations = a.observations();
+          f.dimension = a.dimension();
           f.rank = a.basis.rank();
           f.ok = true;
         } catch (...) {

@@ -54,10 +54,6 @@ struct BatchSettings {
   nlohmann::json settings_json;            // echoed into summary.json
 };
 
-// Largest image the live (in-browser) viewer reconstructs; beyond it the
-// slider steps between precomputed images at the swept ks.
-inline constexpr int kLiveViewerMaxPixels = 512 * 512;
-inline constexpr int kLiveViewerMaxDimension = 192;
 
 struct FileResult {
   std::string path;

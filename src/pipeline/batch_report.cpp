@@ -11,11 +11,10 @@
 
 #include "core/error.hpp"
 #include "io/atomic_file.hpp"
-#include "measure/error_map.hpp"
 #include "pipeline/batch.hpp"
 #include "pipeline/batch_detail.hpp"
+#include "pipeline/file_visuals.hpp"
 #include "pipeline/k_choice.hpp"
-#include "reconstruct/reconstruct.hpp"
 #include "report/colormap.hpp"
 #include "report/html.hpp"
 #include "report/svg.hpp"
@@ -60,17 +59,6 @@ double raw_total(const BatchResult& r) {
   double total = 0.0;
   for (const auto* f : ok_files(r)) total += double(f->width) * f->height * f->channels;
   return total;
-}
-
-std::string float32_bytes(const double* values, std::size_t count) {
-  std::string out(count * 4, '\0');
-  for (std::size_t i = 0; i < count; ++i) {
-    const float f = float(values[i]);
-    std::uint32_t u;
-    std::memcpy(&u, &f, 4);
-    for (int b = 0; b < 4; ++b) out[i * 4 + b] = char((u >> (8 * b)) & 0xff);  // little-endian
-  }
-  return out;
 }
 
 std::string sample_bytes(const Image& img) {
@@ -429,12 +417,14 @@ nlohmann::json write_batch_outputs(const BatchResult& r, const BatchSettings& s,
     h.error_scale_note = "per-pixel |original − reconstruction| averaged over channels, scaled to each file's largest "
                          "error (stated under the map); a viridis-like map, readable with colour-vision deficiencies and in gray.";
     for (int i = 0; i <= 8; ++i) h.error_scale_colours.push_back(viridis_like_hex(i / 8.0));
-    h.viewer_note = "Move the slider (mouse, or focus it and use the arrow keys) to reconstruct at any k. Images up to " +
-                    std::to_string(kLiveViewerMaxPixels) + " pixels (512×512) with d ≤ " +
-                    std::to_string(kLiveViewerMaxDimension) +
-                    " are rebuilt live in your browser from the embedded mean, components and coefficients (float32), "
-                    "rounded and clipped like the written files; the PSNR beside it is computed on that result. "
-                    "Larger images step between precomputed reconstructions at the swept k." +
+    VisualSettings vs;
+    h.viewer_note = "Move the slider (mouse, or focus it and use the arrow keys) to reconstruct at any k. Each viewer "
+                    "shows one crop of the file at full resolution (1:1, at most " + std::to_string(vs.crop_side) + "×" +
+                    std::to_string(vs.crop_side) + " pixels: the region with the finest detail; a smaller image is "
+                    "shown whole). For d ≤ " + std::to_string(vs.live_max_dimension) +
+                    " the crop is rebuilt live in your browser from the embedded mean, components and the crop's own "
+                    "patch coefficients (float32), rounded and clipped like the written files, and the PSNR beside it is "
+                    "that of the crop; larger d step between precomputed reconstructions of the crop at the swept k." +
                     std::string(s.coding.enabled ? " With --quality the tables measure the decoded (quantised) "
                                                    "images; the sliders show the unquantised reconstruction." : "") +
                     " Viewers for the first " +
@@ -449,26 +439,55 @@ nlohmann::json write_batch_outputs(const BatchResult& r, const BatchSettings& s,
         continue;  // the file changed since the sweep; leave it out of the pictures
       }
       const int k = std::min<int>(show_k, int(a.basis.rank()));
-      Image recon;
-      const auto rows = sweep_ks(a, {k}, [&](int, std::size_t, const Image& img) { recon = img; });
-      const ErrorMap em = absolute_error_map(a.image(), recon);
+      const PatchLayout* patches = a.patches();
+      const bool with_viewer = int(h.viewers.size()) < s.live_viewers && patches;
+      const FileVisuals fv = file_visuals(a, k, with_viewer ? file_ks(s.ks, a.basis.rank()) : std::vector<int>{}, vs);
       HtmlFilePanel p;
       p.file = f.path;
       const FileQuality q = quality_at(f, k);
-      p.note = "k = " + std::to_string(k) + ": PSNR " + fixed(rows.front().quality.psnr_db, 2) + " dB" +
-               (std::isnan(rows.front().ssim) ? "" : ", SSIM " + fixed(rows.front().ssim, 4)) +
+      p.note = "k = " + std::to_string(k) + ": PSNR " + fixed(fv.quality.psnr_db, 2) + " dB" +
+               (std::isnan(fv.ssim) ? "" : ", SSIM " + fixed(fv.ssim, 4)) +
                (meets_target(q, s.target) ? " — meets the target" : " — below the target") +
-               (r.shared ? (f.training ? " (training file)" : " (held-out file)") : "");
-      p.original = {encode_png(a.image()), "Original image " + f.path, "original"};
-      p.reconstruction = {encode_png(recon), "Reconstruction of " + f.path + " with k = " + std::to_string(k),
+               (r.shared ? (f.training ? " (training file)" : " (held-out file)") : "") +
+               "; largest error in the image " + fixed(fv.quality.max_abs_error, 0) + " levels.";
+      const int sc = fv.preview_scale;
+      p.preview_title = sc == 1 ? "The whole image at 1:1"
+                                : "The whole image reduced 1:" + std::to_string(sc) + " (each pixel is the mean of " +
+                                      std::to_string(sc) + "×" + std::to_string(sc) + " pixels; the error map shows "
+                                      "the mean error of each block)";
+      const auto png8 = [](const Image& im) {
+        PngWriteOptions o;
+        o.level = 9;  // the report's images are small and kept: smallest files
+        o.filter = PngFilter::adaptive;
+        return encode_png(im, o);
+      };
+      const auto heat = [&](const std::vector<double>& values, int w, int hgt, double max) {
+        return png8(colour_map_image(values, w, hgt, max));
+      };
+      p.original = {png8(fv.preview_original), "Original image " + f.path + (sc > 1 ? ", reduced" : ""), "original"};
+      p.reconstruction = {png8(fv.preview_reconstruction),
+                          "Reconstruction of " + f.path + " with k = " + std::to_string(k) + (sc > 1 ? ", reduced" : ""),
                           "reconstruction, k = " + std::to_string(k)};
-      p.error_map = {encode_png(colour_map_image(em.values, em.width, em.height, em.max_value)),
+      p.error_map = {heat(fv.preview_error, fv.preview_original.width, fv.preview_original.height, fv.preview_error_max),
                      "Heat map of the absolute error of " + f.path + " at k = " + std::to_string(k) +
-                         "; brighter is larger, the largest is " + fixed(em.max_value, 1),
-                     "error heat map (yellow = " + fixed(em.max_value, 1) + " levels)"};
+                         "; brighter is larger, the largest shown is " + fixed(fv.preview_error_max, 1),
+                     "error heat map (yellow = " + fixed(fv.preview_error_max, 1) + " levels)"};
+      if (sc > 1)
+        for (const VisualCrop& c : fv.crops) {
+          HtmlTriple t;
+          const std::string where = std::to_string(c.crop.width) + "×" + std::to_string(c.crop.height) + " at x = " +
+                                    std::to_string(c.crop.x) + ", y = " + std::to_string(c.crop.y);
+          t.title = "1:1 crop, " + c.label + " (" + where + "; PSNR of the crop " + fixed(c.psnr_db, 2) + " dB)";
+          t.original = {png8(c.original), "Original, " + c.label + ", " + where, "original, 1:1"};
+          t.reconstruction = {png8(c.reconstruction), "Reconstruction with k = " + std::to_string(k) + ", " + c.label,
+                              "reconstruction, k = " + std::to_string(k) + ", 1:1"};
+          t.error_map = {heat(c.error, c.crop.width, c.crop.height, c.max_error),
+                         "Heat map of the absolute error in the crop; the largest is " + fixed(c.max_error, 1),
+                         "error (yellow = " + fixed(c.max_error, 1) + " levels)"};
+          p.crops.push_back(std::move(t));
+        }
       h.panels.push_back(std::move(p));
 
-      const auto* patches = dynamic_cast<const PatchLayout*>(a.layout.get());
       if (!charts_done && patches) {
         charts_done = true;
         HtmlSection ssec;
@@ -503,44 +522,47 @@ nlohmann::json write_batch_outputs(const BatchResult& r, const BatchSettings& s,
                             " as patches: mid-gray is 0, lighter positive, darker negative (each scaled to its largest "
                             "entry). The percentage is the share of variance each carries.";
       }
-      if (int(h.viewers.size()) < s.live_viewers && patches) {
+      if (with_viewer) {
+        const CropViewer& cv = fv.viewer;
+        const PatchOptions& po = patches->options();
         HtmlViewer v;
         v.file = f.path;
-        v.original = {encode_png(a.image()), "Original image " + f.path, "original"};
+        v.original = {png8(cv.original), "Original image " + f.path + (cv.crop.width < a.image().width ||
+                                                                         cv.crop.height < a.image().height ? ", 1:1 crop" : ""),
+                      "original"};
         v.initial_k = k;
         v.ks = file_ks(s.ks, a.basis.rank());
-        const Image& img = a.image();
-        const bool live = std::int64_t(img.width) * img.height <= kLiveViewerMaxPixels &&
-                          a.basis.dimension() <= kLiveViewerMaxDimension;
-        v.live = live;
-        if (live) {
-          const PatchOptions& po = patches->options();
-          v.width = img.width;
-          v.height = img.height;
-          v.channels = img.channels;
-          v.bit_depth = img.bit_depth;
+        v.live = cv.live;
+        v.width = cv.crop.width;
+        v.height = cv.crop.height;
+        v.image_x = cv.crop.x;
+        v.image_y = cv.crop.y;
+        v.whole_image = cv.crop.width == a.image().width && cv.crop.height == a.image().height;
+        if (cv.live) {
+          v.channels = a.image().channels;
+          v.bit_depth = a.image().bit_depth;
           v.patch_height = po.patch_height;
           v.patch_width = po.patch_width;
           v.stride_y = po.stride_y;
           v.stride_x = po.stride_x;
-          v.padded_width = patches->padded_width();
-          v.padded_height = patches->padded_height();
-          v.patches_across = patches->patches_across();
-          v.patches_down = patches->patches_down();
+          v.patches_across = cv.crop.px1 - cv.crop.px0;
+          v.patches_down = cv.crop.py1 - cv.crop.py0;
+          v.padded_width = (v.patches_across - 1) * po.stride_x + po.patch_width;
+          v.padded_height = (v.patches_down - 1) * po.stride_y + po.patch_height;
+          v.crop_x = cv.crop.x - cv.crop.px0 * po.stride_x;
+          v.crop_y = cv.crop.y - cv.crop.py0 * po.stride_y;
           v.joint_colour = po.colour == ColourMode::joint;
-          v.dimension = int(a.basis.dimension());
-          v.rank = int(a.basis.rank());
-          v.observations = int(a.X.rows());
-          v.mean_f32 = float32_bytes(a.basis.mean.data(), std::size_t(a.basis.mean.size()));
-          // components r×d component-major = the column-major d×r matrix as stored
-          v.components_f32 = float32_bytes(a.basis.components.data(), std::size_t(a.basis.components.size()));
-          const Eigen::MatrixXd C = project(a.basis, a.X, a.basis.rank());
-          const Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor> Crow = C;
-          v.coefficients_f32 = float32_bytes(Crow.data(), std::size_t(Crow.size()));
-          v.original_samples = sample_bytes(img);
+          v.dimension = cv.dimension;
+          v.rank = cv.rank;
+          v.observations = cv.observations;
+          v.mean_f32 = cv.mean_f32;
+          v.components_f32 = cv.components_f32;
+          v.coefficients_f32 = cv.coefficients_f32;
+          v.original_samples = sample_bytes(cv.original);
         } else {
-          const auto srows = sweep_ks(a, v.ks, [&](int, std::size_t, const Image& im) { v.pngs.push_back(encode_png(im)); });
-          for (const auto& sr : srows) v.psnr_db.push_back(sr.quality.psnr_db);
+          v.ks = cv.ks;
+          for (const Image& im : cv.images) v.pngs.push_back(png8(im));
+          v.psnr_db = cv.psnr_db;
         }
         h.viewers.push_back(std::move(v));
       }

@@ -1,6 +1,8 @@
 #include "pipeline/codec_study.hpp"
 
 #include <algorithm>
+#include <exception>
+#include <limits>
 #include <cstdio>
 #include <filesystem>
 #include <numeric>
@@ -12,22 +14,27 @@
 #include "io/jpeg.hpp"
 #include "measure/image_metrics.hpp"
 #include "measure/ssim.hpp"
+#include "observe/patch_blocks.hpp"
+#include "pipeline/patch_sweep.hpp"
+#include "solve/blocked_operator.hpp"
+#include "solve/scatter_sum.hpp"
 #include "report/svg.hpp"
 
 namespace pcasweep {
 
 namespace {
 
-Basis dct_basis_for(const Eigen::MatrixXd& X, const PatchOptions& patch, int channels) {
-  const Eigen::Index n = X.rows(), d = X.cols();
+// The DCT-II basis with columns sorted by the data's coefficient variance, from the
+// accumulated scatter M (d×d, about the mean): variance_j = d_jᵀ·M·d_j/(N−1).
+Basis dct_basis_for(const ScatterSum& sum, const PatchOptions& patch, int channels) {
+  const Eigen::Index n = sum.rows(), d = sum.cols();
   Basis b;
-  b.mean = X.colwise().mean().transpose();
-  Eigen::MatrixXd centred = X;
-  centred.rowwise() -= b.mean.transpose();
+  b.mean = sum.mean();
   const double dof = n > 1 ? double(n - 1) : 1.0;
   const Eigen::MatrixXd all = patch_dct_basis(patch.patch_height, patch.patch_width,
                                               patch.colour == ColourMode::joint ? channels : 1);
-  const Eigen::VectorXd variance = (centred * all).colwise().squaredNorm().transpose() / dof;
+  const Eigen::MatrixXd scatter = sum.scatter();
+  const Eigen::VectorXd variance = ((scatter * all).cwiseProduct(all)).colwise().sum().transpose().cwiseMax(0.0) / dof;
   std::vector<Eigen::Index> order(static_cast<std::size_t>(d));
   std::iota(order.begin(), order.end(), Eigen::Index(0));
   std::stable_sort(order.begin(), order.end(), [&](Eigen::Index a, Eigen::Index c) { return variance(a) > variance(c); });
@@ -37,7 +44,7 @@ Basis dct_basis_for(const Eigen::MatrixXd& X, const PatchOptions& patch, int cha
     b.components.col(j) = all.col(order[std::size_t(j)]);
     b.eigenvalues(j) = variance(order[std::size_t(j)]);
   }
-  b.variable_variances = centred.colwise().squaredNorm().transpose() / dof;
+  b.variable_variances = scatter.diagonal() / dof;
   b.total_variance = b.variable_variances.sum();
   b.observation_count = n;
   b.solver = "dct";
@@ -45,32 +52,71 @@ Basis dct_basis_for(const Eigen::MatrixXd& X, const PatchOptions& patch, int cha
   return b;
 }
 
+// One input of fit: read, checked against the first, and its patches' geometry.
+Image read_fit_input(const std::string& path, const ImageStudySettings& settings, SavedBasis& saved, bool first,
+                     const std::string& first_path) {
+  Image image = read_image(path, read_options(settings));
+  if (first) {
+    saved.channels = image.channels;
+    saved.bit_depth = image.bit_depth;
+  } else if (image.channels != saved.channels || image.bit_depth != saved.bit_depth) {
+    throw usage_error(path + ": has " + std::to_string(image.channels) + " channel(s) at " +
+                      std::to_string(image.bit_depth) + " bits but " + first_path + " has " +
+                      std::to_string(saved.channels) + " at " + std::to_string(saved.bit_depth) +
+                      "; a basis is learned on images of one kind");
+  }
+  return image;
+}
+
 }  // namespace
 
 SavedBasis fit_basis(const std::vector<std::string>& inputs, const ImageStudySettings& settings,
                      BasisTransform transform) {
   if (inputs.empty()) throw usage_error("fit: give at least one image");
-  std::vector<Eigen::MatrixXd> parts;
-  Eigen::Index rows = 0;
   SavedBasis saved;
   saved.patch = settings.patch;
   saved.transform = transform;
-  for (std::size_t i = 0; i < inputs.size(); ++i) {
-    const Image image = read_image(inputs[i], read_options(settings));
-    if (i == 0) {
-      saved.channels = image.channels;
-      saved.bit_depth = image.bit_depth;
-    } else if (image.channels != saved.channels || image.bit_depth != saved.bit_depth) {
-      throw usage_error(inputs[i] + ": has " + std::to_string(image.channels) + " channel(s) at " +
-                        std::to_string(image.bit_depth) + " bits but " + inputs[0] + " has " +
-                        std::to_string(saved.channels) + " at " + std::to_string(saved.bit_depth) +
-                        "; a basis is learned on images of one kind");
+  // The exact solver and the DCT need only the scatter: accumulated file by file
+  // (solve/scatter_sum.hpp), so memory does not grow with the inputs. The randomized
+  // solver (asked for, or d above kAlwaysExactDimension) reads the stacked observations.
+  Eigen::Index d = 0;
+  {
+    const Image first = read_fit_input(inputs[0], settings, saved, true, inputs[0]);
+    d = PatchLayout(first, settings.patch, inputs[0]).dimension();
+  }
+  const bool stacked = transform == BasisTransform::pca &&
+                       (settings.solver.choice == SolverChoice::randomized ||
+                        (settings.solver.choice == SolverChoice::automatic && d > kAlwaysExactDimension));
+  if (!stacked) {
+    ScatterSum sum(d);
+    for (std::size_t i = 0; i < inputs.size(); ++i) {
+      const Image image = read_fit_input(inputs[i], settings, saved, i == 0, inputs[0]);
+      const PatchLayout layout(image, settings.patch, inputs[i]);
+      const PatchBlocks blocks(layout, image);
+      sum.add(BlockedOperator<double>(blocks));
     }
+    if (sum.rows() < 2) throw usage_error(inputs[0] + ": only one patch in all inputs; use a smaller --patch");
+    if (transform == BasisTransform::dct) {
+      saved.basis = dct_basis_for(sum, settings.patch, saved.channels);
+    } else {
+      SolverSettings exact = settings.solver;
+      exact.choice = SolverChoice::exact;
+      saved.basis = solve(sum, nullptr, 1.0, exact);
+      if (settings.solver.choice == SolverChoice::automatic)
+        saved.basis.solver_reason = "d = " + std::to_string(d) + " <= " + std::to_string(kAlwaysExactDimension) +
+                                    ": the exact solver on the scatter accumulated over " +
+                                    std::to_string(sum.blocks()) + " file(s)";
+    }
+    return saved;
+  }
+  std::vector<Eigen::MatrixXd> parts;
+  Eigen::Index rows = 0;
+  for (std::size_t i = 0; i < inputs.size(); ++i) {
+    const Image image = read_fit_input(inputs[i], settings, saved, i == 0, inputs[0]);
     const PatchLayout layout(image, settings.patch, inputs[i]);
     parts.push_back(layout.observe({image}));
     rows += parts.back().rows();
   }
-  const Eigen::Index d = parts.front().cols();
   if (rows < 2) throw usage_error(inputs[0] + ": only one patch in all inputs; use a smaller --patch");
   Eigen::MatrixXd X(rows, d);
   Eigen::Index at = 0;
@@ -79,11 +125,7 @@ SavedBasis fit_basis(const std::vector<std::string>& inputs, const ImageStudySet
     at += p.rows();
   }
   parts.clear();
-  if (transform == BasisTransform::dct) {
-    saved.basis = dct_basis_for(X, settings.patch, saved.channels);
-  } else {
-    saved.basis = solve(X, settings.solver);
-  }
+  saved.basis = solve(X, settings.solver);
   return saved;
 }
 
@@ -114,72 +156,180 @@ void check_basis_geometry(const SavedBasis& s, const Image& image, const PatchOp
 
 namespace {
 
-RdPoint measured_point(const std::string& method, int quality, int coded, std::size_t bytes, const Image& original,
-                       const Image& decoded) {
+RdPoint coded_point(const std::string& method, int quality, const PatchSweepResult& r, const Image& image) {
   RdPoint p;
   p.method = method;
   p.quality = quality;
-  p.coded = coded;
-  p.bytes = std::int64_t(bytes);
-  p.bits_per_pixel = 8.0 * double(bytes) / (double(original.width) * double(original.height));
-  p.psnr_db = compare_images(original, decoded).psnr_db;
-  p.ssim = compute_ssim(original, decoded).ssim;
+  p.coded = r.encoded.coded;
+  p.bytes = std::int64_t(r.encoded.bytes.size());
+  p.bits_per_pixel = 8.0 * double(p.bytes) / pixel_count(image);
+  p.psnr_db = r.quality.psnr_db;
+  p.ssim = r.ssim.ssim;
   return p;
+}
+
+// JPEG at `quality`: encoded, then decoded and measured row by row (16-bit originals
+// against the 8-bit decoding scaled by 257).
+RdPoint jpeg_point(const Image& image, int quality, const std::string& name, std::string& bytes) {
+  bytes = encode_jpeg(image, quality);
+  JpegRowReader reader(bytes, name + " (JPEG q" + std::to_string(quality) + ")");
+  if (reader.width() != image.width || reader.height() != image.height || reader.channels() != image.channels)
+    throw data_error(name + ": the JPEG decoder returned another geometry");
+  QualityAccumulator quality_acc(image.channels, image.bit_depth);
+  SsimAccumulator ssim(image.width, image.height, image.channels, image.max_value());
+  const std::size_t row = std::size_t(image.width) * image.channels;
+  constexpr int kRows = 64;
+  std::vector<std::uint16_t> decoded(row * kRows);
+  for (int y = 0; y < image.height;) {
+    const int got = reader.read_rows(decoded.data(), kRows);
+    if (got <= 0) throw data_error(name + ": the JPEG decoder stopped early");
+    if (image.bit_depth == 16)
+      for (std::size_t i = 0; i < row * std::size_t(got); ++i) decoded[i] = std::uint16_t(decoded[i] * 257u);
+    const std::uint16_t* original = image.samples.data() + row * std::size_t(y);
+    quality_acc.add(original, decoded.data(), row * std::size_t(got));
+    ssim.add_rows(original, decoded.data(), got);
+    y += got;
+  }
+  RdPoint p;
+  p.method = "jpeg";
+  p.quality = quality;
+  p.bytes = std::int64_t(bytes.size());
+  p.bits_per_pixel = 8.0 * double(bytes.size()) / pixel_count(image);
+  p.psnr_db = quality_acc.result().psnr_db;
+  p.ssim = ssim.result().ssim;
+  return p;
+}
+
+// The --quality (1..100) whose model rate in bits per pixel is nearest (in log) to `bpp`.
+int quality_for_rate(const PatchLayout& layout, int bit_depth, const DecoderBasis& basis, int k, double bpp) {
+  const double per_obs_to_bpp = double(layout.observation_count()) / (double(layout.width()) * layout.height());
+  int best = 50;
+  double best_gap = std::numeric_limits<double>::infinity();
+  for (int q = 1; q <= 100; ++q) {
+    const double theta = water_level_for_psnr(quality_psnr_db(q), bit_depth == 16 ? 65535.0 : 255.0);
+    const double model = gaussian_rate_bits(basis.power.head(k), theta) * per_obs_to_bpp;
+    const double gap = std::abs(std::log(std::max(model, 1e-9)) - std::log(bpp));
+    if (gap < best_gap) {
+      best_gap = gap;
+      best = q;
+    }
+  }
+  return best;
+}
+
+// True when the measured curve of `method` has points at or below and at or above `bpp`.
+bool brackets(const std::vector<RdPoint>& points, const std::string& method, double bpp) {
+  bool below = false, above = false;
+  for (const auto& p : points)
+    if (p.method == method) {
+      below = below || p.bits_per_pixel <= bpp;
+      above = above || p.bits_per_pixel >= bpp;
+    }
+  return below && above;
 }
 
 }  // namespace
 
 std::vector<RdPoint> rate_distortion(const ImageAnalysis& a, const RdSettings& settings, const std::string& jpeg_dir) {
-  const auto* layout = dynamic_cast<const PatchLayout*>(a.layout.get());
+  const PatchLayout* layout = a.patches();
   if (!layout || a.sources.size() != 1) {
     throw usage_error("rate-distortion comparison needs one image cut into patches");
   }
   const Image& image = a.image();
   const std::string& name = a.input();
   std::vector<RdPoint> points;
-  CodecSettings codec;
-  codec.zstd_level = settings.zstd_level;
-  // PCA (own basis, every computed component available) and DCT (all d).
-  for (int method = 0; method < 2; ++method) {
-    BasisChoice choice;
-    choice.kind = method == 0 ? BasisKind::embedded : BasisKind::dct;
-    choice.basis = &a.basis;
-    codec.k = int(method == 0 ? a.basis.rank() : a.basis.dimension());
-    for (int q : settings.codec_qualities) {
-      codec.quality = q;
-      const EncodeResult r = encode_image(image, layout->options(), choice, codec, name);
-      const Image decoded = decode_coded_image(r.bytes, name);
-      points.push_back(measured_point(method == 0 ? "pca" : "dct", q, r.coded, r.bytes.size(), image, decoded));
+
+  // PCA (own basis, every computed component available) and DCT (all d): one pass for both curves.
+  PatchMoments computed;
+  if (!a.moments) computed = patch_moments(*layout, image);
+  const PatchMoments& moments = a.moments ? *a.moments : computed;
+  BasisChoice pca_choice;
+  pca_choice.basis = &a.basis;
+  BasisChoice dct_choice;
+  dct_choice.kind = BasisKind::dct;
+  const DecoderBasis bases[2] = {decoder_basis(*layout, image.bit_depth, moments, pca_choice, name),
+                                 decoder_basis(*layout, image.bit_depth, moments, dct_choice, name)};
+  const int method_k[2] = {int(a.basis.rank()), int(a.basis.dimension())};
+  const char* method_name[2] = {"pca", "dct"};
+  const auto measure = [&](const std::vector<std::pair<int, int>>& wanted) {  // (method, quality)
+    std::vector<CodingPlan> plans;
+    plans.reserve(wanted.size());
+    std::vector<PatchSweepPoint> sweep_points;
+    for (const auto& [method, q] : wanted) {
+      CodecSettings s;
+      s.k = method_k[method];
+      s.quality = q;
+      s.zstd_level = settings.zstd_level;
+      plans.push_back(plan_coding(*layout, image.bit_depth, bases[method], s, name));
+      PatchSweepPoint p;
+      p.k = s.k;
+      p.plan = &plans.back();
+      p.decoder_basis = method;
+      sweep_points.push_back(p);
     }
+    PatchSweepInputs in;
+    in.image = &image;
+    in.layout = layout;
+    in.decoder_bases = {&bases[0], &bases[1]};
+    in.codec.zstd_level = settings.zstd_level;
+    const auto results = run_patch_sweep(in, sweep_points);
+    for (std::size_t i = 0; i < wanted.size(); ++i)
+      points.push_back(coded_point(method_name[wanted[i].first], wanted[i].second, results[i], image));
+  };
+  std::vector<std::pair<int, int>> wanted;
+  for (int method = 0; method < 2; ++method) {
+    std::vector<int> qs;
+    for (double bpp : settings.target_bits_per_pixel)
+      qs.push_back(quality_for_rate(*layout, image.bit_depth, bases[method], method_k[method], bpp));
+    std::sort(qs.begin(), qs.end());
+    qs.erase(std::unique(qs.begin(), qs.end()), qs.end());
+    for (int q : qs) wanted.emplace_back(method, q);
   }
+  measure(wanted);
+  // Refine: a reported rate a curve does not reach gets one point beyond its end.
+  wanted.clear();
+  for (int method = 0; method < 2; ++method) {
+    int lowest = 101, highest = 0;
+    for (const auto& p : points)
+      if (p.method == method_name[method]) lowest = std::min(lowest, p.quality), highest = std::max(highest, p.quality);
+    bool need_low = false, need_high = false;
+    for (double bpp : settings.reported_bits_per_pixel) {
+      if (brackets(points, method_name[method], bpp)) continue;
+      bool any_below = false;
+      for (const auto& p : points) any_below = any_below || (p.method == method_name[method] && p.bits_per_pixel <= bpp);
+      (any_below ? need_high : need_low) = true;
+    }
+    if (need_low && lowest > 1) wanted.emplace_back(method, std::max(1, lowest - 15));
+    if (need_high && highest < 100) wanted.emplace_back(method, std::min(100, highest + 15));
+  }
+  if (!wanted.empty()) measure(wanted);
+
   if (jpeg_supports_channels(image.channels)) {
     if (!jpeg_dir.empty()) {
       std::error_code ec;
       std::filesystem::create_directories(jpeg_dir, ec);
       if (ec) throw data_error(jpeg_dir + ": cannot create folder: " + ec.message());
     }
-    for (int q : settings.jpeg_qualities) {
-      const std::string jpeg = encode_jpeg(image, q);
-      Image decoded = decode_image(jpeg, name + " (JPEG q" + std::to_string(q) + ")");
-      if (image.channels == 1 && decoded.channels == 3) {
-        // stb_image_write stores gray as YCbCr with neutral chroma: keep one channel (R = G = B = Y).
-        Image gray = decoded;
-        gray.channels = 1;
-        gray.channel_names = {"gray"};
-        gray.samples.resize(std::size_t(decoded.width) * decoded.height);
-        for (std::size_t i = 0; i < gray.samples.size(); ++i) gray.samples[i] = decoded.samples[3 * i];
-        decoded = std::move(gray);
+    const std::vector<int>& qs = settings.jpeg_qualities;
+    std::vector<RdPoint> jpeg(qs.size());
+    std::vector<std::string> files(qs.size());
+    std::exception_ptr failure;
+#pragma omp parallel for schedule(dynamic, 1)
+    for (std::ptrdiff_t i = 0; i < std::ptrdiff_t(qs.size()); ++i) {
+      try {
+        jpeg[std::size_t(i)] = jpeg_point(image, qs[std::size_t(i)], name, files[std::size_t(i)]);
+      } catch (...) {
+#pragma omp critical
+        if (!failure) failure = std::current_exception();
       }
-      if (image.bit_depth == 16) {
-        for (auto& v : decoded.samples) v = std::uint16_t(v * 257u);
-        decoded.bit_depth = 16;
-      }
-      RdPoint p = measured_point("jpeg", q, 0, jpeg.size(), image, decoded);
+    }
+    if (failure) std::rethrow_exception(failure);
+    for (std::size_t i = 0; i < qs.size(); ++i) {
+      RdPoint& p = jpeg[i];
       if (!jpeg_dir.empty()) {
-        p.file = std::filesystem::path(jpeg_dir).filename().string() + "/" + output_stem(name) + ".q" +
-                 std::to_string(q) + ".jpg";
-        write_file_atomic((std::filesystem::path(jpeg_dir) / (output_stem(name) + ".q" + std::to_string(q) + ".jpg")).string(),
-                          jpeg);
+        const std::string file = output_stem(name) + ".q" + std::to_string(qs[i]) + ".jpg";
+        p.file = std::filesystem::path(jpeg_dir).filename().string() + "/" + file;
+        write_file_atomic((std::filesystem::path(jpeg_dir) / file).string(), files[i]);
       }
       points.push_back(std::move(p));
     }
@@ -189,7 +339,7 @@ std::vector<RdPoint> rate_distortion(const ImageAnalysis& a, const RdSettings& s
   const Eigen::VectorXd& ev = a.basis.eigenvalues;
   const double tail = std::max(0.0, a.basis.total_variance - ev.sum());
   const double top = image.max_value();
-  const double d = double(a.basis.dimension()), n = double(a.X.rows());
+  const double d = double(a.basis.dimension()), n = double(a.observations());
   const double pixels = double(image.width) * double(image.height);
   for (int psnr = 10; psnr <= 70; ++psnr) {
     const double theta = water_level_for_psnr(psnr, top);
@@ -203,12 +353,11 @@ std::vector<RdPoint> rate_distortion(const ImageAnalysis& a, const RdSettings& s
     for (Eigen::Index i = 0; i < ev.size(); ++i) p.coded += ev(i) > theta ? 1 : 0;
     points.push_back(p);
   }
-  // Each curve (a run of one method) by increasing rate.
-  for (auto first = points.begin(); first != points.end();) {
-    auto last = std::find_if(first, points.end(), [&](const RdPoint& p) { return p.method != first->method; });
-    std::stable_sort(first, last, [](const RdPoint& x, const RdPoint& y) { return x.bits_per_pixel < y.bits_per_pixel; });
-    first = last;
-  }
+  // Each curve by increasing rate, curves in the order pca, dct, jpeg, gaussian_bound.
+  const auto rank = [](const std::string& m) { return m == "pca" ? 0 : m == "dct" ? 1 : m == "jpeg" ? 2 : 3; };
+  std::stable_sort(points.begin(), points.end(), [&](const RdPoint& x, const RdPoint& y) {
+    return rank(x.method) != rank(y.method) ? rank(x.method) < rank(y.method) : x.bits_per_pixel < y.bits_per_pixel;
+  });
   return points;
 }
 
@@ -279,8 +428,8 @@ RdReport write_rate_distortion(const ImageAnalysis& a, const RdSettings& setting
                  {"psnr_db_at_bits_per_pixel", at},
                  {"note", "PSNR at a rate is linearly interpolated between the two measured points around it; "
                           "pca and dct are encoded and decoded by pcasweep (own basis at 16-bit precision vs the "
-                          "fixed DCT-II basis, same quantiser and entropy coder), jpeg is stb_image_write's baseline "
-                          "JPEG decoded by stb_image, gaussian_bound is R(D) of a Gaussian source with the "
+                          "fixed DCT-II basis, same quantiser and entropy coder), jpeg is libjpeg-turbo's baseline "
+                          "JPEG (4:2:0, optimised Huffman) decoded by libjpeg-turbo, gaussian_bound is R(D) of a Gaussian source with the "
                           "eigenvalues as variances (no side information)"},
                  {"points", to_json(rd_table(report.points))}};
   write_file_atomic((std::filesystem::path(out_dir) / "rd.csv").string(), render_csv(rd_table(report.points)));
@@ -299,7 +448,7 @@ RdReport write_rate_distortion(const ImageAnalysis& a, const RdSettings& setting
   const struct { const char* method; const char* label; MarkerShape marker; const char* dash; } curves[] = {
       {"pca", "PCA, own basis (pcasweep codec)", MarkerShape::circle, ""},
       {"dct", "DCT-II 8x8-style basis, same quantiser and coder", MarkerShape::square, ""},
-      {"jpeg", "JPEG (stb_image_write)", MarkerShape::triangle, ""},
+      {"jpeg", "JPEG (libjpeg-turbo, 4:2:0)", MarkerShape::triangle, ""},
       {"gaussian_bound", "Gaussian R(D) from the eigenvalues (reference; real patches can beat it)",
        MarkerShape::none, "6 4"}};
   double x_max = 0.0;

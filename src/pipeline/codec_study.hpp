@@ -50,17 +50,25 @@ struct RdPoint {
   std::string file;         // JPEG file written, relative to the output folder
 };
 
+// The study's points, chosen so that few suffice (each is a whole coded file, decoded and
+// measured once): for PCA and DCT one --quality per target rate, the quality whose Gaussian
+// model rate (quantize.hpp) is nearest to it; for JPEG a fixed grid of its qualities; then,
+// for each rate the report reads (0.5, 1, 2 bits per pixel) that a curve does not bracket,
+// one more point beyond the curve's end (a second, smaller pass).
 struct RdSettings {
-  std::vector<int> codec_qualities = {5, 10, 20, 30, 35, 40, 45, 50, 55, 60, 65, 70, 80, 90, 100};
-  std::vector<int> jpeg_qualities = {5, 10, 20, 30, 40, 50, 60, 70, 80, 90, 95, 100};
+  std::vector<double> target_bits_per_pixel = {0.25, 0.5, 1.0, 2.0, 4.0};
+  std::vector<int> jpeg_qualities = {10, 30, 50, 70, 85, 95};
+  std::vector<double> reported_bits_per_pixel = {0.5, 1.0, 2.0};
   int zstd_level = 19;
 };
 
 // For analysis with one image and the patches layout: PCA (own basis, k = r) and DCT
-// (k = d) through encode→decode at each codec quality, JPEG at each JPEG quality (written
-// under jpeg_dir/<stem>.q<Q>.jpg when jpeg_dir is not empty, else only sized), and the
-// Gaussian bound R(D) = Σ ½log2(λ_i/D_i) per observation from the eigenvalues, in bits per
-// pixel (N·R / (W·H)). Returns the points, each curve by increasing bits per pixel.
+// (k = d) through the codec at the qualities above — every point of both curves in one
+// streaming pass over the image (pipeline/patch_sweep.hpp) — JPEG (libjpeg-turbo, 4:2:0,
+// optimised Huffman) at each JPEG quality, encoded and decoded row by row, in parallel
+// (written under jpeg_dir/<stem>.q<Q>.jpg when jpeg_dir is not empty, else only sized),
+// and the Gaussian bound R(D) = Σ ½log2(λ_i/D_i) per observation from the eigenvalues, in
+// bits per pixel (N·R / (W·H)). Returns the points, each curve by increasing bits per pixel.
 std::vector<RdPoint> rate_distortion(const ImageAnalysis& analysis, const RdSettings& settings,
                                      const std::string& jpeg_dir);
 

@@ -10,6 +10,7 @@
 #include "observe/patches.hpp"
 #include "observe/whole.hpp"
 #include "report/table.hpp"
+#include "solve/blas_runtime.hpp"
 
 namespace pcasweep {
 
@@ -58,12 +59,12 @@ ImageAnalysis analyze_image_files(const std::vector<std::string>& paths, const I
 }
 
 void check_ks_against(const std::vector<int>& ks, const ImageAnalysis& a) {
-  const Eigen::Index smallest = std::min(a.X.rows(), a.X.cols());
+  const Eigen::Index smallest = std::min(a.observations(), a.dimension());
   for (int k : ks) {
     if (k < 1 || k > smallest) {
       throw usage_error("--k: k = " + std::to_string(k) + " is outside 1.." + std::to_string(smallest) +
-                        " (min(N, d), N = " + std::to_string(a.X.rows()) + " observations, d = " +
-                        std::to_string(a.X.cols()) + " variables)");
+                        " (min(N, d), N = " + std::to_string(a.observations()) + " observations, d = " +
+                        std::to_string(a.dimension()) + " variables)");
     }
     if (k > a.basis.rank()) {
       throw usage_error("--k: k = " + std::to_string(k) + " is more than the " + std::to_string(a.basis.rank()) +
@@ -73,7 +74,7 @@ void check_ks_against(const std::vector<int>& ks, const ImageAnalysis& a) {
 }
 
 std::vector<int> default_ks_for(const ImageAnalysis& a) {
-  const Eigen::Index r = std::min({a.basis.rank(), a.X.rows(), a.X.cols()});
+  const Eigen::Index r = std::min({a.basis.rank(), a.observations(), a.dimension()});
   return default_ks(r);
 }
 
@@ -110,6 +111,7 @@ nlohmann::json solver_json(const Basis& b) {
         "rank-r error (0 = optimal), extrapolated from the last passes; null when it cannot be estimated. "
         "last_relative_change: largest move of a leading eigenvalue at the last step, relative to it.";
   }
+  j["blas"] = blas_json(blas_info());  // which kernels ran the products (solve/blas_runtime.hpp)
   return j;
 }
 
@@ -117,6 +119,7 @@ std::string solver_lines(const Basis& b) {
   std::ostringstream o;
   o << "solver: " << b.solver << " (" << b.solver_reason << "); " << b.rank() << " of " << b.dimension()
     << " components computed\n";
+  o << blas_line(blas_info());
   if (b.solver == "randomized") {
     o << "randomized, " << b.scheme << ": " << b.sample_size << " test vectors (" << b.oversample
       << " oversampling), " << b.passes << " products with the data ("

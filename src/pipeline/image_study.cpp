@@ -1,16 +1,22 @@
 #include "pipeline/image_study.hpp"
 
 #include <algorithm>
+#include <cctype>
 #include <charconv>
 #include <filesystem>
+#include <map>
 #include <set>
 
-#include "core/error.hpp"
 #include "codec/image_codec.hpp"
-#include "pipeline/image_set.hpp"
+#include "core/error.hpp"
+#include "io/atomic_file.hpp"
 #include "measure/ssim.hpp"
+#include "observe/patch_blocks.hpp"
 #include "observe/raster.hpp"
+#include "pipeline/image_set.hpp"
+#include "pipeline/patch_sweep.hpp"
 #include "reconstruct/reconstruct.hpp"
+#include "solve/blocked_operator.hpp"
 
 namespace pcasweep {
 
@@ -24,15 +30,50 @@ ImageAnalysis analyze_image(const std::string& path, const ImageStudySettings& s
 }
 
 ImageAnalysis analyze_sources(std::vector<std::string> inputs, std::vector<Image> sources,
-                              std::unique_ptr<Layout> layout, const SolverSettings& solver) {
+                              std::unique_ptr<Layout> layout, const SolverSettings& solver, bool hold_observations) {
   ImageAnalysis a;
   a.inputs = std::move(inputs);
   a.sources = std::move(sources);
   for (const auto& s : a.sources) a.alpha_dropped = a.alpha_dropped || s.alpha_dropped;
   a.layout = std::move(layout);
+  const PatchLayout* patches = a.patches();
+  if (patches && !hold_observations) {
+    // Streamed: the solver reads the patches band by band from the image.
+    const PatchBlocks blocks(*patches, a.image());
+    const BlockedOperator<double> op(blocks);
+    if (uses_single_precision(op.rows(), op.cols(), solver)) {
+      const BlockedOperator<float> single(blocks);
+      a.basis = solve(op, &single, single.offset_ratio(), solver);
+    } else {
+      a.basis = solve(op, nullptr, 1.0, solver);
+    }
+    if (a.basis.solver == "exact") a.moments = PatchMoments{op.rows(), op.mean(), op.scatter()};
+    return a;
+  }
   a.X = a.layout->observe(a.sources);
   a.basis = solve(a.X, solver);
   return a;
+}
+
+Eigen::MatrixXd coefficients_of(const ImageAnalysis& a, Eigen::Index k) {
+  if (!a.streamed()) return project(a.basis, a.X, k);
+  if (k < 0 || k > a.basis.rank()) throw usage_error("k must be between 0 and " + std::to_string(a.basis.rank()));
+  const PatchBlocks blocks(*a.patches(), a.image());
+  const Eigen::MatrixXd V = a.basis.components.leftCols(k);
+  const Eigen::RowVectorXd shift = a.basis.mean.transpose() * V;
+  Eigen::MatrixXd c(a.observations(), k);
+  RowBlock band;
+  for (Eigen::Index b = 0; b < blocks.block_count(); ++b) {
+    blocks.fill(b, band);
+    RowBlock part = band * V;
+    part.rowwise() -= shift;
+    Eigen::Index at = 0;
+    for (const auto& [first, count] : blocks.segments(b)) {
+      c.middleRows(first, count) = part.middleRows(at, count);
+      at += count;
+    }
+  }
+  return c;
 }
 
 std::vector<int> default_ks(Eigen::Index d) {
@@ -70,23 +111,167 @@ void check_ks(const std::vector<int>& ks, Eigen::Index d) {
   }
 }
 
+namespace {
+
+// Rows of a sweep before measuring: k, energy and the size estimate.
+SweepRow size_row(const ImageAnalysis& a, int k, const Eigen::VectorXd& cumulative) {
+  const std::int64_t n = a.observations(), d = a.dimension();
+  double raw = 0.0;
+  for (const auto& s : a.sources) raw += double(s.sample_count());
+  SweepRow row;
+  row.k = k;
+  row.energy_retained = cumulative(k - 1);
+  row.stored_values = std::int64_t(k) * d + n * k + d;
+  row.ratio = double(row.stored_values) / raw;
+  return row;
+}
+
+// The codec's byte figures for one row.
+void fill_bytes(SweepRow& row, const Image& image, const std::string& file, double png_bytes, int coded) {
+  const double raw_bytes = double(image.sample_count()) * (image.bit_depth / 8);
+  row.bytes = std::int64_t(file.size());
+  row.coded_components = coded;
+  row.bits_per_pixel = 8.0 * double(file.size()) / pixel_count(image);
+  row.compression_ratio = raw_bytes / double(file.size());
+  row.ratio_to_png = png_bytes / double(file.size());
+}
+
+// Size of a lossless PNG of the analysed image: the input file itself when it is that
+// PNG (nothing dropped), else our encoding at level 6.
+double lossless_png_bytes(const ImageAnalysis& a) {
+  std::error_code ec;
+  const std::string& path = a.input();
+  if (!a.alpha_dropped) {
+    std::string ext = std::filesystem::path(path).extension().string();
+    std::transform(ext.begin(), ext.end(), ext.begin(), [](unsigned char c) { return char(std::tolower(c)); });
+    const auto size = std::filesystem::file_size(path, ec);
+    if (ext == ".png" && !ec) return double(size);
+  }
+  PngWriteOptions o;
+  o.level = 6;
+  return double(encode_png(a.image(), o).size());
+}
+
+// Collects a point's rows into a whole image (for on_image callers).
+class CollectSink : public RowSink {
+ public:
+  explicit CollectSink(const Image& like) : image_(make_image(like.width, like.height, like.channels, like.bit_depth)) {
+    image_.channel_names = like.channel_names;
+  }
+  void add(const std::uint16_t*, const std::uint16_t* written, int y0, int count) override {
+    const std::size_t row = std::size_t(image_.width) * image_.channels;
+    std::copy(written, written + row * std::size_t(count), image_.samples.begin() + std::ptrdiff_t(row * std::size_t(y0)));
+  }
+  const Image& image() const { return image_; }
+
+ private:
+  Image image_;
+};
+
+}  // namespace
+
+std::vector<SweepRow> sweep_streamed(const ImageAnalysis& a, const std::vector<int>& ks, const SweepCoding& coding,
+                                     const StreamedSinks& sinks, const SweepOutput& output) {
+  check_ks(ks, a.basis.rank());
+  const PatchLayout* layout = a.patches();
+  if (!a.streamed() || !layout) throw usage_error("internal: a streamed sweep needs one image cut into patches");
+  const Image& image = a.image();
+  const Eigen::VectorXd cumulative = cumulative_proportions(a.basis);
+  PatchSweepInputs in;
+  in.image = &image;
+  in.layout = layout;
+  in.basis = &a.basis;
+  in.ssim_precision = output.ssim_precision;
+  in.codec.zstd_level = coding.zstd_level;
+  std::vector<PatchSweepPoint> points;
+  std::vector<std::size_t> point_of(ks.size());  // the point each k is measured at
+  std::vector<CodingPlan> plans;
+  std::optional<DecoderBasis> decoder;
+  if (coding.enabled) {
+    // Codec at every k: the k whose coded components are the same make the same file
+    // (but for the k it records), so each distinct set is coded and measured once.
+    PatchMoments computed;
+    if (!a.moments) computed = patch_moments(*layout, image);
+    BasisChoice choice;
+    choice.basis = &a.basis;
+    decoder = decoder_basis(*layout, image.bit_depth, a.moments ? *a.moments : computed, choice, a.input());
+    in.decoder_bases = {&*decoder};
+    plans.reserve(ks.size());
+    std::map<std::vector<Eigen::Index>, std::size_t> seen;
+    for (std::size_t i = 0; i < ks.size(); ++i) {
+      CodecSettings settings;
+      settings.k = ks[i];
+      settings.quality = coding.quality;
+      settings.zstd_level = coding.zstd_level;
+      plans.push_back(plan_coding(*layout, image.bit_depth, *decoder, settings, a.input()));
+      const auto [it, fresh] = seen.emplace(plans.back().coded, points.size());
+      point_of[i] = it->second;
+      if (fresh) {
+        PatchSweepPoint p;
+        p.k = ks[i];
+        p.plan = &plans.back();
+        points.push_back(p);
+      }
+    }
+  } else {
+    for (std::size_t i = 0; i < ks.size(); ++i) {
+      point_of[i] = points.size();
+      PatchSweepPoint p;
+      p.k = ks[i];
+      points.push_back(p);
+    }
+  }
+  for (auto& p : points) {
+    if (sinks.for_k) p.sinks = sinks.for_k(p.k);
+    if (sinks.ssim_map_for_k) p.on_ssim_map_row = sinks.ssim_map_for_k(p.k);
+  }
+  const std::vector<PatchSweepResult> results = run_patch_sweep(in, points);
+  const double png_bytes = coding.enabled ? lossless_png_bytes(a) : 0.0;
+  std::vector<SweepRow> rows;
+  for (std::size_t i = 0; i < ks.size(); ++i) {
+    const PatchSweepResult& r = results[point_of[i]];
+    SweepRow row = size_row(a, ks[i], cumulative);
+    row.quality = r.quality;
+    row.ssim = r.ssim.ssim;
+    row.channel_ssim = r.ssim.channel_ssim;
+    row.clipped_samples = r.clipped;
+    if (coding.enabled) {
+      const int owner = points[point_of[i]].k;
+      const std::string file = owner == ks[i] ? r.encoded.bytes : with_components_asked(r.encoded.bytes, std::uint32_t(ks[i]));
+      fill_bytes(row, image, file, png_bytes, r.encoded.coded);
+      if (coding.on_coded) coding.on_coded(ks[i], file);
+    }
+    if (sinks.after_k) sinks.after_k(ks[i], points[point_of[i]].k);
+    rows.push_back(std::move(row));
+  }
+  return rows;
+}
+
 std::vector<SweepRow> sweep_ks(const ImageAnalysis& a, const std::vector<int>& ks, const ImageSink& on_image,
                                const SweepCoding& coding) {
   check_ks(ks, a.basis.rank());
+  if (a.streamed()) {
+    std::map<int, std::unique_ptr<CollectSink>> collected;
+    StreamedSinks sinks;
+    if (on_image) {
+      sinks.for_k = [&](int k) -> std::vector<RowSink*> {
+        auto& c = collected[k];
+        c = std::make_unique<CollectSink>(a.image());
+        return {c.get()};
+      };
+      sinks.after_k = [&](int k, int owner) { on_image(k, 0, collected.at(owner)->image()); };
+    }
+    return sweep_streamed(a, ks, coding, sinks, SweepOutput{});
+  }
+  // In memory: X held (whole, bands, or patches held for comparison).
   const Eigen::VectorXd cumulative = cumulative_proportions(a.basis);
-  const std::int64_t n = a.X.rows(), d = a.X.cols();
-  double raw = 0.0;
-  for (const auto& s : a.sources) raw += double(s.sample_count());
   ReconstructionSweep sweep(a.basis, a.X);
   // The codec handles one image cut into patches; other layouts keep the unquantised path.
-  const auto* coded_layout =
-      coding.enabled && a.sources.size() == 1 ? dynamic_cast<const PatchLayout*>(a.layout.get()) : nullptr;
-  const double raw_bytes = coded_layout ? double(a.image().sample_count()) * (a.image().bit_depth / 8) : 0.0;
-  const double png_bytes = coded_layout ? double(encode_png(a.image()).size()) : 0.0;
+  const PatchLayout* coded_layout = coding.enabled && a.sources.size() == 1 ? a.patches() : nullptr;
+  const double png_bytes = coded_layout ? lossless_png_bytes(a) : 0.0;
   std::vector<SweepRow> rows;
   for (int k : ks) {
-    SweepRow row;
-    row.k = k;
+    SweepRow row = size_row(a, k, cumulative);
     std::vector<Image> written;
     if (coded_layout) {
       // Real bytes: encode with the image's own basis, then measure what the decoder gives back.
@@ -98,11 +283,7 @@ std::vector<SweepRow> sweep_ks(const ImageAnalysis& a, const std::vector<int>& k
       choice.basis = &a.basis;
       const EncodeResult encoded = encode_image(a.image(), coded_layout->options(), choice, settings, a.input());
       written.push_back(decode_coded_image(encoded.bytes, a.input(), nullptr, nullptr, &row.clipped_samples));
-      row.bytes = std::int64_t(encoded.bytes.size());
-      row.coded_components = encoded.coded;
-      row.bits_per_pixel = 8.0 * double(encoded.bytes.size()) / pixel_count(a.image());
-      row.compression_ratio = raw_bytes / double(encoded.bytes.size());
-      row.ratio_to_png = png_bytes / double(encoded.bytes.size());
+      fill_bytes(row, a.image(), encoded.bytes, png_bytes, encoded.coded);
       if (coding.on_coded) coding.on_coded(k, encoded.bytes);
     } else {
       const Eigen::MatrixXd& xk = sweep.advance_to(k);
@@ -117,9 +298,6 @@ std::vector<SweepRow> sweep_ks(const ImageAnalysis& a, const std::vector<int>& k
     const SsimResult structural = compute_ssim_sets(a.sources, written);
     row.ssim = structural.ssim;
     row.channel_ssim = structural.channel_ssim;
-    row.energy_retained = cumulative(k - 1);
-    row.stored_values = std::int64_t(k) * d + n * k + d;
-    row.ratio = double(row.stored_values) / raw;
     if (on_image)
       for (std::size_t i = 0; i < written.size(); ++i) on_image(k, i, written[i]);
     rows.push_back(std::move(row));
@@ -177,8 +355,8 @@ nlohmann::json sweep_summary(const ImageAnalysis& a, const std::vector<SweepRow>
   j["settings"] = settings;
   j["layout"] = {{"name", a.layout->name()},
                  {"description", a.layout->describe()},
-                 {"observations", a.X.rows()},
-                 {"dimension", a.X.cols()}};
+                 {"observations", a.observations()},
+                 {"dimension", a.dimension()}};
   const Eigen::VectorXd ev = a.basis.eigenvalues;
   j["solver"] = solver_json(a.basis);
   j["spectrum"] = {{"total_variance", a.basis.total_variance},
@@ -195,33 +373,109 @@ std::string output_stem(const std::string& path) { return std::filesystem::path(
 
 }  // namespace pcasweep
 
-#include "io/atomic_file.hpp"
-
 namespace pcasweep {
+
+namespace {
+
+// Writes a point's rows as PNG, row by row.
+class PngSink : public RowSink {
+ public:
+  PngSink(const std::string& path, const Image& like, const PngWriteOptions& options)
+      : writer_(path, like.width, like.height, like.channels, like.bit_depth, options) {}
+  void add(const std::uint16_t*, const std::uint16_t* written, int, int count) override { writer_.write_rows(written, count); }
+  void finish() override { writer_.finish(); }
+
+ private:
+  PngRowWriter writer_;
+};
+
+// Writes the local SSIM map (0..1 scaled to 0..255, negative values as 0) as an 8-bit gray PNG.
+class SsimMapWriter {
+ public:
+  SsimMapWriter(const std::string& path, int width, int height, const PngWriteOptions& options)
+      : writer_(path, width, height, 1, 8, options), row_(std::size_t(width)) {}
+  void add(const float* values) {
+    for (std::size_t i = 0; i < row_.size(); ++i)
+      row_[i] = std::uint16_t(std::lround(std::clamp(double(values[i]), 0.0, 1.0) * 255.0));
+    writer_.write_rows(row_.data(), 1);
+  }
+  void finish() { writer_.finish(); }
+
+ private:
+  PngRowWriter writer_;
+  std::vector<std::uint16_t> row_;
+};
+
+// Copies a finished file onto another name, atomically.
+void copy_file_atomic(const std::string& from, const std::string& to) {
+  write_via_temporary(to, [&](const std::string& temporary) {
+    std::error_code ec;
+    std::filesystem::copy_file(from, temporary, std::filesystem::copy_options::overwrite_existing, ec);
+    return !ec;
+  });
+}
+
+}  // namespace
 
 std::vector<SweepRow> write_sweep(const ImageAnalysis& a, const std::vector<int>& ks, const std::string& out_dir,
                                   const nlohmann::json& settings, const nlohmann::json& extra_summary,
-                                  bool ssim_maps, const SweepCoding& coding) {
+                                  bool ssim_maps, const SweepCoding& coding, const SweepOutput& output) {
   check_ks(ks, a.basis.rank());
   std::error_code ec;
   std::filesystem::create_directories(out_dir, ec);
   if (ec) throw data_error(out_dir + ": cannot create output folder: " + ec.message());
   const auto path_in = [&](const std::string& name) { return (std::filesystem::path(out_dir) / name).string(); };
+  const auto image_name = [&](std::size_t source, int k, const char* suffix) {
+    return path_in(output_stem(a.inputs[source]) + ".k" + std::to_string(k) + suffix);
+  };
   SweepCoding coding_with_files = coding;
   if (coding.enabled) {
     coding_with_files.on_coded = [&](int k, const std::string& bytes) {
-      write_file_atomic(path_in(output_stem(a.input()) + ".k" + std::to_string(k) + ".pcsc"), bytes);
+      write_file_atomic(image_name(0, k, ".pcsc"), bytes);
       if (coding.on_coded) coding.on_coded(k, bytes);
     };
   }
-  auto rows = sweep_ks(a, ks, [&](int k, std::size_t source, const Image& image) {
-    write_png(path_in(output_stem(a.inputs[source]) + ".k" + std::to_string(k) + ".png"), image);
-    if (ssim_maps) {
-      const SsimResult s = compute_ssim(a.sources[source], image, true);
-      if (!s.map.empty())
-        write_png(path_in(output_stem(a.inputs[source]) + ".k" + std::to_string(k) + ".ssim.png"), ssim_map_image(s));
+  std::vector<SweepRow> rows;
+  if (a.streamed()) {
+    // Each distinct reconstruction is written once, row by row; a k that makes the same
+    // coded file as a smaller k gets a copy of that k's images.
+    std::map<int, std::unique_ptr<PngSink>> pngs;
+    std::map<int, std::unique_ptr<SsimMapWriter>> maps;
+    const Image& image = a.image();
+    const bool map_fits = image.width > 2 * kSsimRadius && image.height > 2 * kSsimRadius;
+    StreamedSinks sinks;
+    sinks.for_k = [&](int k) -> std::vector<RowSink*> {
+      auto& p = pngs[k];
+      p = std::make_unique<PngSink>(image_name(0, k, ".png"), image, output.png);
+      return {p.get()};
+    };
+    if (ssim_maps && map_fits) {
+      sinks.ssim_map_for_k = [&](int k) -> std::function<void(int, const float*)> {
+        auto& m = maps[k];
+        m = std::make_unique<SsimMapWriter>(image_name(0, k, ".ssim.png"), image.width - 2 * kSsimRadius,
+                                            image.height - 2 * kSsimRadius, output.png);
+        SsimMapWriter* writer = m.get();
+        return [writer](int, const float* values) { writer->add(values); };
+      };
     }
-  }, coding_with_files);
+    sinks.after_k = [&](int k, int owner) {
+      if (owner == k) {
+        if (maps.count(k)) maps.at(k)->finish();
+        return;
+      }
+      copy_file_atomic(image_name(0, owner, ".png"), image_name(0, k, ".png"));
+      if (maps.count(owner)) copy_file_atomic(image_name(0, owner, ".ssim.png"), image_name(0, k, ".ssim.png"));
+    };
+    rows = sweep_streamed(a, ks, coding_with_files, sinks, output);
+  } else {
+    rows = sweep_ks(a, ks, [&](int k, std::size_t source, const Image& image) {
+      write_png(image_name(source, k, ".png"), image, output.png);
+      if (ssim_maps) {
+        const SsimResult s = compute_ssim(a.sources[source], image, true);
+        if (!s.map.empty()) write_png(image_name(source, k, ".ssim.png"), ssim_map_image(s), output.png);
+      }
+    }, coding_with_files);
+  }
   write_file_atomic(path_in("spectrum.csv"), render_csv(spectrum_table(a.basis)));
   write_file_atomic(path_in("sweep.csv"), render_csv(sweep_table(rows, a.image().channel_names)));
   nlohmann::json summary = sweep_summary(a, rows, settings);

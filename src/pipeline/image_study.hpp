@@ -11,11 +11,15 @@
 #include <functional>
 #include <memory>
 #include <nlohmann/json.hpp>
+#include <optional>
 #include <string>
 #include <vector>
 
+#include "codec/image_codec.hpp"
 #include "io/image.hpp"
+#include "io/png.hpp"
 #include "measure/image_metrics.hpp"
+#include "measure/ssim.hpp"
 #include "observe/patches.hpp"
 #include "report/table.hpp"
 #include "solve/basis.hpp"
@@ -39,19 +43,39 @@ struct ImageAnalysis {
   std::vector<Image> sources;        // the samples analysed (alpha dropped if asked)
   bool alpha_dropped = false;        // a file had alpha and --drop-alpha removed it
   std::unique_ptr<Layout> layout;
-  Eigen::MatrixXd X;                 // N×d observations
+  // N×d observations, held for the in-memory layouts (whole, bands) and when
+  // asked for; empty for patches, which are streamed band by band from the
+  // image (observe/patch_blocks.hpp) and never held.
+  Eigen::MatrixXd X;
   Basis basis;
+  // Patches solved exactly: the patches' mean and scatter, which the codec
+  // reuses instead of another pass (codec/image_codec.hpp).
+  std::optional<PatchMoments> moments;
 
   const Image& image() const { return sources.front(); }
   const std::string& input() const { return inputs.front(); }
+  Eigen::Index observations() const { return layout->observation_count(); }
+  Eigen::Index dimension() const { return layout->dimension(); }
+  // The patch geometry when the layout is patches, else null.
+  const PatchLayout* patches() const { return dynamic_cast<const PatchLayout*>(layout.get()); }
+  // True when the observations are streamed (patches, X not held).
+  bool streamed() const { return patches() != nullptr && X.size() == 0; }
 };
 
 // Reads `path`, cuts it into patches and solves. Throws Error.
 ImageAnalysis analyze_image(const std::string& path, const ImageStudySettings& settings);
 
-// Observes already-read sources with `layout` and solves. Throws Error.
+// Observes already-read sources with `layout` and solves. Patches are streamed
+// (X stays empty) unless hold_observations is set, which keeps X (N×d) and
+// makes every later step take the in-memory path (what the tests compare the
+// streaming path against). Throws Error.
 ImageAnalysis analyze_sources(std::vector<std::string> inputs, std::vector<Image> sources,
-                              std::unique_ptr<Layout> layout, const SolverSettings& solver);
+                              std::unique_ptr<Layout> layout, const SolverSettings& solver,
+                              bool hold_observations = false);
+
+// C = (X − 1μᵀ)·V[:, :k], N×k, for held or streamed observations (rows in
+// observe()'s order). Holds N×k: for small images (the report's live viewer).
+Eigen::MatrixXd coefficients_of(const ImageAnalysis& analysis, Eigen::Index k);
 
 // Default k list for dimension d: 1, 2, 4, … (powers of two below d), then d.
 std::vector<int> default_ks(Eigen::Index d);
@@ -82,10 +106,14 @@ struct SweepRow {
 
 // For each k (ascending, each in [1, r]): reconstruct, fold, round and clip,
 // measure against the originals (all sources pooled). `on_image(k, source
-// index, image)` (optional) receives each written-to-be image. Returns one row per k.
+// index, image)` (optional) receives each written-to-be image (whole: it
+// costs an image's memory; write_sweep streams rows to files instead).
+// Returns one row per k.
 // With coding enabled (sweep_cmd does; the library default is off) and one image cut into patches, each k is encoded
 // (codec/image_codec.hpp, own basis, --quality) and the quality is measured on the DECODED
 // image; `coding.on_coded(k, bytes)` receives each file. Otherwise X̂_k is measured unquantised.
+// Streamed patches go through one pass of pipeline/patch_sweep.hpp for every k;
+// held observations through the in-memory path (reconstruct/, Layout::fold).
 using ImageSink = std::function<void(int k, std::size_t source, const Image& image)>;
 struct SweepCoding {
   bool enabled = false;
@@ -93,8 +121,29 @@ struct SweepCoding {
   int zstd_level = 19;
   std::function<void(int k, const std::string& bytes)> on_coded;
 };
+
+// How a sweep writes and measures its images.
+struct SweepOutput {
+  PngWriteOptions png;                                      // the <stem>.k<K>.png files
+  SsimPrecision ssim_precision = SsimPrecision::automatic;  // measure/ssim.hpp
+};
 std::vector<SweepRow> sweep_ks(const ImageAnalysis& analysis, const std::vector<int>& ks,
                                const ImageSink& on_image = {}, const SweepCoding& coding = {});
+
+class RowSink;  // pipeline/patch_sweep.hpp
+// Where a streamed sweep's rows go. A k whose coded file repeats a smaller k's
+// components is not reconstructed again: only its `owner` k gets sinks.
+struct StreamedSinks {
+  std::function<std::vector<RowSink*>(int k)> for_k;                                   // the sinks of k (not owned)
+  std::function<std::function<void(int row, const float* values)>(int k)> ssim_map_for_k;  // local-SSIM map rows
+  std::function<void(int k, int owner)> after_k;  // after the pass, once per k, ascending: k's rows were owner's
+};
+
+// The streamed sweep of one image cut into patches (analysis.streamed()): one
+// pass of pipeline/patch_sweep.hpp for every k, rows to `sinks`. Rows as sweep_ks().
+std::vector<SweepRow> sweep_streamed(const ImageAnalysis& analysis, const std::vector<int>& ks,
+                                     const SweepCoding& coding, const StreamedSinks& sinks,
+                                     const SweepOutput& output = {});
 
 // Columns component, eigenvalue, proportion, cumulative.
 Table spectrum_table(const Basis& basis);
@@ -127,6 +176,7 @@ namespace pcasweep {
 std::vector<SweepRow> write_sweep(const ImageAnalysis& analysis, const std::vector<int>& ks,
                                   const std::string& out_dir, const nlohmann::json& settings,
                                   const nlohmann::json& extra_summary = nlohmann::json::object(),
-                                  bool ssim_maps = false, const SweepCoding& coding = {});
+                                  bool ssim_maps = false, const SweepCoding& coding = {},
+                                  const SweepOutput& output = {});
 
 }  // namespace pcasweep

@@ -11,6 +11,7 @@
 #include "measure/image_metrics.hpp"
 #include "measure/ssim.hpp"
 #include "observe/patches.hpp"
+#include "pipeline/patch_sweep.hpp"
 #include "reconstruct/reconstruct.hpp"
 
 namespace pcasweep {
@@ -44,18 +45,43 @@ std::string achieved_text(const KQuality& q, const QualityTarget& t) {
 
 }  // namespace
 
-KQuality evaluate_k(const ImageAnalysis& a, const Eigen::MatrixXd& coefficients, int k, bool with_ssim) {
-  if (k < 1 || k > coefficients.cols()) throw usage_error("evaluate_k: k = " + std::to_string(k) + " out of range");
-  const Eigen::MatrixXd xk = reconstruct(a.basis, coefficients.leftCols(k));
-  const std::vector<Raster> folded = a.layout->fold(xk);
-  std::vector<Image> written;
-  for (std::size_t i = 0; i < folded.size(); ++i) written.push_back(quantize(folded[i], a.sources[i]));
-  KQuality q;
-  q.k = k;
-  q.psnr_db = compare_image_sets(a.sources, written).psnr_db;
-  q.ssim = with_ssim ? compute_ssim_sets(a.sources, written).ssim : std::numeric_limits<double>::quiet_NaN();
-  return q;
+std::vector<KQuality> evaluate_ks(const ImageAnalysis& a, const std::vector<int>& ks, bool with_ssim) {
+  for (int k : ks)
+    if (k < 1 || k > a.basis.rank()) throw usage_error("evaluate_k: k = " + std::to_string(k) + " out of range");
+  std::vector<KQuality> out;
+  if (a.streamed()) {
+    // One streaming pass measures every k (pipeline/patch_sweep.hpp).
+    PatchSweepInputs in;
+    in.image = &a.image();
+    in.layout = a.patches();
+    in.basis = &a.basis;
+    std::vector<PatchSweepPoint> points(ks.size());
+    for (std::size_t i = 0; i < ks.size(); ++i) {
+      points[i].k = ks[i];
+      points[i].ssim = with_ssim;
+    }
+    const auto results = run_patch_sweep(in, points);
+    for (std::size_t i = 0; i < ks.size(); ++i)
+      out.push_back({ks[i], results[i].quality.psnr_db,
+                     with_ssim ? results[i].ssim.ssim : std::numeric_limits<double>::quiet_NaN()});
+    return out;
+  }
+  const Eigen::MatrixXd coefficients = project(a.basis, a.X, a.basis.rank());
+  for (int k : ks) {
+    const Eigen::MatrixXd xk = reconstruct(a.basis, coefficients.leftCols(k));
+    const std::vector<Raster> folded = a.layout->fold(xk);
+    std::vector<Image> written;
+    for (std::size_t i = 0; i < folded.size(); ++i) written.push_back(quantize(folded[i], a.sources[i]));
+    KQuality q;
+    q.k = k;
+    q.psnr_db = compare_image_sets(a.sources, written).psnr_db;
+    q.ssim = with_ssim ? compute_ssim_sets(a.sources, written).ssim : std::numeric_limits<double>::quiet_NaN();
+    out.push_back(q);
+  }
+  return out;
 }
+
+KQuality evaluate_k(const ImageAnalysis& a, int k, bool with_ssim) { return evaluate_ks(a, {k}, with_ssim).front(); }
 
 TargetSearch search_quality_target(const ImageAnalysis& a, const QualityTarget& target) {
   if (!target.active()) throw usage_error("no quality target given (--target-psnr and/or --target-ssim)");
@@ -65,13 +91,12 @@ TargetSearch search_quality_target(const ImageAnalysis& a, const QualityTarget& 
   s.label = "quality target";
   const Basis& b = a.basis;
   const int r = int(b.rank());
-  const Eigen::MatrixXd coefficients = project(b, a.X, r);
   const bool with_ssim = !std::isnan(target.ssim);
   std::map<int, KQuality> cache;
   auto probe = [&](int k) -> bool {
     auto it = cache.find(k);
     if (it == cache.end()) {
-      it = cache.emplace(k, evaluate_k(a, coefficients, k, with_ssim)).first;
+      it = cache.emplace(k, evaluate_k(a, k, with_ssim)).first;
       ts.evaluated.push_back(it->second);
     }
     return meets(it->second, target);
@@ -81,7 +106,7 @@ TargetSearch search_quality_target(const ImageAnalysis& a, const QualityTarget& 
   double samples = 0.0;
   for (const auto& src : a.sources) samples += double(src.sample_count());
   const double big_n = double(b.observation_count), d = double(b.dimension());
-  const auto* patches = dynamic_cast<const PatchLayout*>(a.layout.get());
+  const PatchLayout* patches = a.patches();
   int lo = 1, hi = r;
   if (!std::isnan(target.psnr_db) && patches && samples > 0) {
     const double L = a.image().max_value();
@@ -153,10 +178,10 @@ TargetSearch search_quality_target(const ImageAnalysis& a, const QualityTarget& 
 }
 
 int exhaustive_quality_k(const ImageAnalysis& a, const QualityTarget& target) {
-  const int r = int(a.basis.rank());
-  const Eigen::MatrixXd coefficients = project(a.basis, a.X, r);
-  for (int k = 1; k <= r; ++k)
-    if (meets(evaluate_k(a, coefficients, k, !std::isnan(target.ssim)), target)) return k;
+  std::vector<int> all(std::size_t(a.basis.rank()));
+  for (std::size_t i = 0; i < all.size(); ++i) all[i] = int(i + 1);
+  for (const KQuality& q : evaluate_ks(a, all, !std::isnan(target.ssim)))
+    if (meets(q, target)) return q.k;
   return 0;
 }
 

@@ -64,9 +64,12 @@ struct TargetSearch {
   std::vector<KQuality> evaluated;         // every k actually reconstructed, in probe order
 };
 
-// Reconstructs at k (1..r) from coefficients C (N×r, see ReconstructionSweep),
-// folds, rounds, clips and measures against the sources. SSIM only when `with_ssim`.
-KQuality evaluate_k(const ImageAnalysis& analysis, const Eigen::MatrixXd& coefficients, int k, bool with_ssim);
+// Reconstructs at k (1..r), folds, rounds, clips and measures against the
+// sources. SSIM only when `with_ssim`. Streamed patches: one pass per call.
+KQuality evaluate_k(const ImageAnalysis& analysis, int k, bool with_ssim);
+
+// The same for several k in one pass (streamed) or one projection (in memory). One result per k, in order.
+std::vector<KQuality> evaluate_ks(const ImageAnalysis& analysis, const std::vector<int>& ks, bool with_ssim);
 
 // The search described above. target must be active (Error(usage) otherwise).
 TargetSearch search_quality_target(const ImageAnalysis& analysis, const QualityTarget& target);

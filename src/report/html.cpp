@@ -205,7 +205,7 @@ const char* kScript = R"JS(
     var orig = v._original, se = 0, hash = 2166136261 >>> 0;
     for (var yy = 0; yy < H; yy++) {
       for (var xx = 0; xx < W; xx++) {
-        var p = yy * PW + xx;
+        var p = (yy + v.crop_y) * PW + xx + v.crop_x;
         for (var k2 = 0; k2 < c; k2++) {
           var val = roundHalfAway(sum[p * c + k2] / wt[p]);
           if (val < 0) val = 0; else if (val > L) val = L;
@@ -332,7 +332,11 @@ std::string render_report_html(const HtmlReport& r) {
     for (std::size_t i = 0; i < r.viewers.size(); ++i) {
       const HtmlViewer& v = r.viewers[i];
       const std::string id = std::to_string(i);
-      o << "<div class=\"viewer\" id=\"viewer-" << id << "\">\n<h3>" << html_escape(v.file) << "</h3>\n<div class=\"pair\">"
+      const std::string where = v.whole_image ? std::string(" (whole image, 1:1)")
+                                              : " (1:1 crop of " + std::to_string(v.width) + "×" + std::to_string(v.height) +
+                                                    " pixels at x = " + std::to_string(v.image_x) + ", y = " +
+                                                    std::to_string(v.image_y) + ")";
+      o << "<div class=\"viewer\" id=\"viewer-" << id << "\">\n<h3>" << html_escape(v.file + where) << "</h3>\n<div class=\"pair\">"
         << "<figure>" << img_tag(v.original) << "<figcaption>" << html_escape(v.original.caption) << "</figcaption></figure>";
       if (v.live) {
         o << "<figure><canvas width=\"" << v.width << "\" height=\"" << v.height
@@ -341,8 +345,8 @@ std::string render_report_html(const HtmlReport& r) {
              "rounded and clipped like the written files</figcaption></figure>";
       } else {
         o << "<figure><img class=\"stepped\" alt=\"Reconstruction of " << html_escape(v.file)
-          << "\" src=\"data:image/png;base64,\"><figcaption>Precomputed reconstruction at the swept k (image too large "
-             "for the live viewer)</figcaption></figure>";
+          << "\" src=\"data:image/png;base64,\"><figcaption>Precomputed reconstructions at the swept k (the live "
+             "viewer rebuilds bases of d up to 192 only)</figcaption></figure>";
       }
       o << "</div>\n<div class=\"controls\"><label for=\"slider-" << id << "\">Components kept (k)</label>";
       if (v.live) {
@@ -363,6 +367,8 @@ std::string render_report_html(const HtmlReport& r) {
                   {"patch_height", v.patch_height}, {"patch_width", v.patch_width}, {"stride_y", v.stride_y},
                   {"stride_x", v.stride_x}, {"padded_width", v.padded_width}, {"padded_height", v.padded_height},
                   {"patches_across", v.patches_across}, {"patches_down", v.patches_down},
+                  {"crop_x", v.crop_x}, {"crop_y", v.crop_y}, {"image_x", v.image_x}, {"image_y", v.image_y},
+                  {"whole_image", v.whole_image},
                   {"joint_colour", v.joint_colour}, {"dimension", v.dimension}, {"rank", v.rank},
                   {"observations", v.observations}, {"mean_f32", base64_encode(v.mean_f32)},
                   {"components_f32", base64_encode(v.components_f32)},
@@ -396,7 +402,13 @@ std::string render_report_html(const HtmlReport& r) {
     for (const auto& p : r.panels) {
       o << "<div class=\"panel\"><h3>" << html_escape(p.file) << "</h3>";
       if (!p.note.empty()) o << "<p class=\"note\">" << html_escape(p.note) << "</p>";
-      o << figure(p.original) << figure(p.reconstruction) << figure(p.error_map) << "</div>\n";
+      if (!p.preview_title.empty()) o << "<h4>" << html_escape(p.preview_title) << "</h4>";
+      o << figure(p.original) << figure(p.reconstruction) << figure(p.error_map);
+      for (const auto& c : p.crops) {
+        o << "<h4>" << html_escape(c.title) << "</h4>" << figure(c.original) << figure(c.reconstruction)
+          << figure(c.error_map);
+      }
+      o << "</div>\n";
     }
     o << "</section>\n";
   }

@@ -11,9 +11,12 @@
 //
 // The live viewer reconstructs in JavaScript exactly as pcasweep does
 // (observe/patches.hpp, reconstruct/, observe/raster.hpp): X̂_k = C[:, :k]·V[:, :k]ᵀ
-// + 1μᵀ, fold patches (overlaps averaged, mirror padding cropped), round half
-// away from zero, clip to the bit depth; then PSNR = 10·log10(L²/MSE) on all
-// samples. Opened as report.html#selftest, the page moves each viewer's
+// + 1μᵀ, fold patches (overlaps averaged), round half away from zero, clip to
+// the bit depth; then PSNR = 10·log10(L²/MSE) on all samples shown. It works
+// on a crop of the image at full resolution: the embedded patches are those
+// that overlap the crop (observe/patch_crop.hpp), folded on a canvas that
+// starts at the first of them, and the crop is cut from that canvas at
+// (crop_x, crop_y); an image no larger than the crop is its own crop. Opened as report.html#selftest, the page moves each viewer's
 // slider through a few k and writes what it displayed into
 // <pre id="selftest-result"> as JSON (for the browser test).
 //
@@ -50,7 +53,10 @@ struct HtmlViewer {
   // live: geometry and data for the in-browser reconstruction
   int width = 0, height = 0, channels = 0, bit_depth = 8;
   int patch_height = 0, patch_width = 0, stride_y = 0, stride_x = 0;
-  int padded_width = 0, padded_height = 0, patches_across = 0, patches_down = 0;
+  int padded_width = 0, padded_height = 0, patches_across = 0, patches_down = 0;  // the canvas and sub-grid
+  int crop_x = 0, crop_y = 0;    // the crop's offset on the canvas (live)
+  int image_x = 0, image_y = 0;  // the crop's place in the image
+  bool whole_image = true;       // the crop is the whole image
   bool joint_colour = true;
   int dimension = 0, rank = 0, observations = 0;
   std::string mean_f32;          // d float32
@@ -63,10 +69,18 @@ struct HtmlViewer {
   std::vector<double> psnr_db;
 };
 
+// Original, reconstruction and error map of one region, side by side.
+struct HtmlTriple {
+  std::string title;       // e.g. "preview, 1:8" or "1:1 crop: largest error at k = 12"
+  HtmlImage original, reconstruction, error_map;
+};
+
 struct HtmlFilePanel {
   std::string file;
   std::string note;        // e.g. "k = 12, PSNR 38.2 dB: below target"
-  HtmlImage original, reconstruction, error_map;
+  HtmlImage original, reconstruction, error_map;  // the preview
+  std::string preview_title;                      // what scale the preview is at
+  std::vector<HtmlTriple> crops;                  // 1:1 crops
 };
 
 struct HtmlSection {

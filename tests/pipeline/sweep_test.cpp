@@ -26,10 +26,12 @@ using pcasweep::testing::TempDir;
 
 namespace {
 
-ImageAnalysis analysis_of(const Image& image, const PatchOptions& options, const std::string& name = "scene.png") {
+// hold: keep the N×d observations in memory (the in-memory path); else they are streamed.
+ImageAnalysis analysis_of(const Image& image, const PatchOptions& options, const std::string& name = "scene.png",
+                          bool hold = false) {
   SolverSettings exact;
   exact.choice = SolverChoice::exact;
-  return analyze_sources({name}, {image}, std::make_unique<PatchLayout>(image, options, name), exact);
+  return analyze_sources({name}, {image}, std::make_unique<PatchLayout>(image, options, name), exact, hold);
 }
 
 std::vector<int> all_ks(Eigen::Index d) {
@@ -65,7 +67,7 @@ std::vector<std::string> split_csv(const std::string& line) {
 TEST_CASE("sweep: unrounded image MSE follows the discarded eigenvalues exactly (tiling patches)") {
   // 160x128 RGB: N = 20·16 = 320 patches > d = 192, so every eigenvalue is informative.
   const Image image = scene_image(160, 128, 3, 8, 31);
-  const ImageAnalysis a = analysis_of(image, {8, 8, 0, 0, ColourMode::joint});
+  const ImageAnalysis a = analysis_of(image, {8, 8, 0, 0, ColourMode::joint}, "scene.png", true);
   const Eigen::Index n = a.X.rows(), d = a.X.cols();
   REQUIRE(n > d);
   ReconstructionSweep sweep(a.basis, a.X);
@@ -125,7 +127,7 @@ TEST_CASE("sweep: written-image MSE never increases as k grows") {
 TEST_CASE("sweep: size estimate and energy retained per row") {
   const Image image = scene_image(40, 24, 3, 8, 5);
   const ImageAnalysis a = analysis_of(image, {8, 8, 0, 0, ColourMode::joint});
-  const std::int64_t n = a.X.rows(), d = a.X.cols();
+  const std::int64_t n = a.observations(), d = a.dimension();
   CHECK(n == 15);
   CHECK(d == 192);
   const auto rows = sweep_ks(a, {1, 5, 192});
