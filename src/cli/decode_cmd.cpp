@@ -6,6 +6,7 @@
 #include "cli/command.hpp"
 #include "core/error.hpp"
 #include "io/atomic_file.hpp"
+#include "io/png.hpp"
 #include "pipeline/codec_study.hpp"
 
 namespace pcasweep::cli {
@@ -29,12 +30,16 @@ Action setup_decode(CLI::App& sub) {
     const std::string bytes = read_file(args->input);
     std::optional<LoadedBasis> loaded;
     if (!args->basis.empty()) loaded = load_basis_file(args->basis);
-    const Image image = decode_coded_image(bytes, args->input, loaded ? &loaded->saved : nullptr,
-                                           loaded ? &loaded->sha256 : nullptr);
-    write_png(args->out, image);
+    // Band by band from the coded bytes to PNG rows: the decoded image is never held whole.
+    PatchDecoder decoder(bytes, args->input, loaded ? &loaded->saved : nullptr, loaded ? &loaded->sha256 : nullptr);
+    const CodedImage& h = decoder.header();
+    PngRowWriter png(args->out, int(h.width), int(h.height), h.channels, h.bit_depth, PngWriteOptions{});
+    std::vector<std::uint16_t> rows;
+    while (decoder.next_rows(rows) > 0) png.write_rows(rows.data(), int(rows.size() / (std::size_t(h.width) * h.channels)));
+    png.finish();
     if (!args->quiet) {
-      std::cout << "wrote " << args->out << ": " << image.width << "x" << image.height << ", " << image.channels
-                << " channel(s), " << image.bit_depth << "-bit\n";
+      std::cout << "wrote " << args->out << ": " << h.width << "x" << h.height << ", " << int(h.channels)
+                << " channel(s), " << int(h.bit_depth) << "-bit\n";
     }
     return 0;
   };

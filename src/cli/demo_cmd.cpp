@@ -49,7 +49,7 @@ Action setup_demo(CLI::App& sub) {
         const auto rows = write_sweep(a, ks, dir, image_settings_json(settings));
         std::cout << "\n== " << path << ": " << a.image().width << "x" << a.image().height << ", "
                   << a.image().channels << " channel(s), " << a.image().bit_depth << "-bit; " << a.layout->describe()
-                  << "; N = " << a.X.rows() << ", d = " << a.X.cols() << "\n"
+                  << "; N = " << a.observations() << ", d = " << a.dimension() << "\n"
                   << render_console(sweep_table(rows, {}), 4) << "wrote " << dir << "/\n";
       } catch (const Error& e) {
         std::cerr << "pcasweep: " << e.what() << "\n";

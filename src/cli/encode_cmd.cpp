@@ -72,7 +72,9 @@ Action setup_encode(CLI::App& sub) {
     if (!args->basis.empty() && args->dct) throw usage_error("--basis and --dct are alternatives; give one");
     std::optional<LoadedBasis> loaded;
     if (!args->basis.empty()) loaded = load_basis_file(args->basis);
-    const Image image = read_image(args->input, read_options(settings));
+    Image image = read_image(args->input, read_options(settings));
+    const int width = image.width, height = image.height;
+    const double max_value = image.max_value();
     EncodeResult result;
     if (loaded) {
       // The basis fixes patch size and colour mode; an explicit --patch/--colour must agree.
@@ -85,23 +87,30 @@ Action setup_encode(CLI::App& sub) {
       check_basis_geometry(loaded->saved, image, patch, args->input, args->basis);
       BasisChoice choice{BasisKind::external, &loaded->saved.basis, loaded->sha256};
       result = encode_image(image, patch, choice, codec, args->input);
-    } else {
-      ImageAnalysis analysis;
+    } else if (args->dct) {
       BasisChoice choice;
-      if (args->dct) {
-        choice.kind = BasisKind::dct;
-      } else {
-        analysis = analyze_image(args->input, settings);
-        choice.basis = &analysis.basis;
-      }
+      choice.kind = BasisKind::dct;
       result = encode_image(image, settings.patch, choice, codec, args->input);
+    } else {
+      // The image's own basis, from the image already read; the exact solve's moments
+      // spare the encoder its own pass over the patches.
+      auto layout = std::make_unique<PatchLayout>(image, settings.patch, args->input);
+      if (layout->observation_count() < 2)
+        throw usage_error(args->input + ": only one patch fits; use a smaller --patch or --stride");
+      std::vector<Image> sources;
+      sources.push_back(std::move(image));  // one copy of the samples, not two
+      const ImageAnalysis analysis = analyze_sources({args->input}, std::move(sources), std::move(layout), settings.solver);
+      BasisChoice choice;
+      choice.basis = &analysis.basis;
+      result = encode_image(analysis.image(), settings.patch, choice, codec, args->input,
+                            analysis.moments ? &*analysis.moments : nullptr);
     }
     write_file_atomic(args->out, result.bytes);
     if (!args->quiet) {
-      const double bpp = 8.0 * double(result.bytes.size()) / (double(image.width) * image.height);
+      const double bpp = 8.0 * double(result.bytes.size()) / (double(width) * height);
       std::cout << args->input << ": k = " << args->k << ", " << result.coded
                 << " component(s) above the water level θ = " << result.water_level << " (nominal "
-                << result.nominal_psnr_db << " dB, model " << psnr_from_mse(result.predicted_mse, image.max_value())
+                << result.nominal_psnr_db << " dB, model " << psnr_from_mse(result.predicted_mse, max_value)
                 << " dB)\nwrote " << args->out << ": " << result.bytes.size() << " bytes, " << bpp
                 << " bits per pixel\n";
     }

@@ -26,6 +26,11 @@ void add_image_options(CLI::App& sub, ImageOptionText& text) {
       ->check(CLI::IsMember({"joint", "channels"}));
   sub.add_flag("--drop-alpha", text.drop_alpha,
                "Remove an alpha channel before analysis (default: alpha is kept as a channel)");
+  sub.add_option("--max-pixels", text.max_pixels,
+                 "Largest image read, in pixels (width x height; default 1073741824 = 2^30). Checked from the "
+                 "file header before anything is allocated, together with whether the file is large enough to "
+                 "hold the size it declares, so a corrupt or hostile header cannot exhaust memory")
+      ->check(CLI::PositiveNumber);
   sub.add_option("--layout", text.layout,
                  "How images become observations: patches (default; one image cut into patches), whole "
                  "(several same-size images, each one observation), bands (several co-registered gray "
@@ -62,6 +67,7 @@ ImageStudySettings image_settings(const ImageOptionText& text) {
   }
   s.patch.colour = text.colour == "channels" ? ColourMode::channels : ColourMode::joint;
   s.drop_alpha = text.drop_alpha;
+  s.max_pixels = text.max_pixels;
   s.layout = text.layout.empty() ? "patches" : text.layout;
   if (s.layout != "patches" && s.layout != "whole" && s.layout != "bands") {
     throw usage_error("--layout takes patches, whole or bands for images (windows for recordings), not '" +
@@ -91,7 +97,8 @@ nlohmann::json image_settings_json(const ImageStudySettings& s) {
           {"stride", {s.patch.stride_y ? s.patch.stride_y : s.patch.patch_height,
                       s.patch.stride_x ? s.patch.stride_x : s.patch.patch_width}},
           {"colour", s.patch.colour == ColourMode::joint ? "joint" : "channels"},
-          {"drop_alpha", s.drop_alpha}};
+          {"drop_alpha", s.drop_alpha},
+          {"max_pixels", s.max_pixels}};
 }
 
 }  // namespace pcasweep::cli

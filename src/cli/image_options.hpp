@@ -22,13 +22,14 @@ struct ImageOptionText {
   int power_iters = -1;        // -1: adaptive
   std::uint64_t seed = 1;
   std::string precision = "double";
+  std::uint64_t max_pixels = kDefaultMaxPixels;  // --max-pixels (io/image.hpp)
 };
 
 // Declares the positional IMAGE (required: an image or a recording) and MORE
 // (further images for --layout whole or bands), shared by sweep and spectrum.
 void add_input_arguments(CLI::App& sub, std::string& input, std::vector<std::string>& more);
 
-// Declares --patch, --stride, --colour, --drop-alpha, --layout and the solver
+// Declares --patch, --stride, --colour, --drop-alpha, --max-pixels, --layout and the solver
 // options (--solver, --rank, --oversample, --power-iters, --seed, --precision) on `sub`.
 void add_image_options(CLI::App& sub, ImageOptionText& text);
 

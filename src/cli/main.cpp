@@ -4,9 +4,12 @@
 
 #include "cli/command.hpp"
 #include "core/error.hpp"
+#include "solve/blas_runtime.hpp"
 
 int main(int argc, char** argv) {
   using namespace pcasweep;
+  // First: may restart pcasweep once with OPENBLAS_CORETYPE set (solve/blas_runtime.hpp).
+  blas_startup(argv);
   CLI::App app{"pcasweep: how many principal components do your images and signals need, "
                "and what does each choice cost and save?"};
   app.set_version_flag("--version", std::string("pcasweep ") + PCASWEEP_VERSION);

@@ -51,7 +51,7 @@ Action setup_spectrum(CLI::App& sub) {
     const double trace = a.basis.total_variance;
     const double rel = trace > 0 ? std::abs(sum - trace) / trace : std::abs(sum - trace);
     std::cout << args->input << (paths.size() > 1 ? " and " + std::to_string(paths.size() - 1) + " more" : "")
-              << ": " << a.layout->describe() << "; N = " << a.X.rows() << " observations, d = " << a.X.cols()
+              << ": " << a.layout->describe() << "; N = " << a.observations() << " observations, d = " << a.dimension()
               << " variables\n"
               << solver_lines(a.basis) << "eigenvalues are variances of the sample covariance (divide by N-1), in sample units squared\n"
               << render_console(table, 6) << "total variance (trace of the covariance) = " << format_real(trace);

@@ -25,6 +25,7 @@ struct SweepArgs {
   int quality = 90;
   bool no_rd = false;
   bool no_codec = false;
+  int png_level = 1;
 };
 }  // namespace
 
@@ -50,6 +51,10 @@ Action setup_sweep(CLI::App& sub) {
                "the decoded file; no bytes columns. At k = d this is the input, bit for bit");
   sub.add_flag("--no-rd", args->no_rd,
                "Skip the rate-distortion comparison (rd.csv, rd.svg, jpeg/: PCA vs JPEG vs DCT vs the bound)");
+  sub.add_option("--png-level", args->png_level,
+                 "zlib effort for the <stem>.k<K>.png files, 0..9: 0 stores them uncompressed, 1 (default) is the "
+                 "fastest compressing level, 6 zlib's default, 9 the smallest and slowest (docs/performance.md)")
+      ->check(CLI::Range(0, 9));
   auto signal = std::make_shared<SignalOptionText>();
   add_signal_options(sub, *signal);  // after the image options: reuses their --layout if any
   return [args, signal, app = &sub]() {
@@ -71,8 +76,7 @@ Action setup_sweep(CLI::App& sub) {
     coding.quality = args->quality;
     settings_json["quality"] = args->quality;
     nlohmann::json extra = {{"choose_k", k_choice_json(choice)}};
-    const bool codable =
-        analysis.sources.size() == 1 && dynamic_cast<const PatchLayout*>(analysis.layout.get()) != nullptr;
+    const bool codable = analysis.sources.size() == 1 && analysis.patches() != nullptr;
     settings_json["measured_on"] =
         args->no_codec || !codable ? "reconstruction rounded to the bit depth" : "decoded file";
     std::string rd_line;
@@ -81,14 +85,17 @@ Action setup_sweep(CLI::App& sub) {
       extra["rate_distortion"] = rd.json;
       rd_line = "rate-distortion (rd.csv, rd.svg): " + rd.sentence + "\n";
     }
-    const auto rows = write_sweep(analysis, ks, args->out, settings_json, extra, args->ssim_map, coding);
+    SweepOutput output;
+    output.png.level = args->png_level;
+    settings_json["png_level"] = args->png_level;
+    const auto rows = write_sweep(analysis, ks, args->out, settings_json, extra, args->ssim_map, coding, output);
     write_k_charts(analysis.basis, choice, args->krules.log_scale, args->input, args->out);
     const int components_written = write_component_images(analysis, args->out);
     if (!args->quiet) {
       std::cout << args->input << ": " << analysis.image().width << "x" << analysis.image().height << ", "
                 << analysis.image().channels << " channel(s), " << analysis.image().bit_depth << "-bit"
                 << (analysis.alpha_dropped ? ", alpha dropped" : "") << "; " << analysis.layout->describe()
-                << "; N = " << analysis.X.rows() << ", d = " << analysis.X.cols() << "\n"
+                << "; N = " << analysis.observations() << ", d = " << analysis.dimension() << "\n"
                 << solver_lines(analysis.basis)
                 << render_console(sweep_table(rows, {}), 4)
                 << (args->no_codec || !codable
