@@ -20,6 +20,12 @@
 //   entropy IMAGE... [--qualities 40,60,75,90] [--methods pca,dct]
 //       whole coded-file sizes, zstd stage against the adaptive range coder
 //       (bench/entropy_bench.cpp, docs/codec.md).
+//   ssim [--width 6000] [--height 4000] [--channels 3] [--bits 8,16] [--threads 1,2]
+//        [--repeat 3] [--band 0]
+//       SSIM and MSE cost, former whole-image code against the accumulators
+//       (bench/ssim_bench.cpp, docs/performance.md "SSIM cost").
+//   png [--width W] [--height H] [--images photo8,photo16,blocky8] [--only S] [--repeat R] [--out DIR]
+//       PNG writers compared on generated photo-like images (bench/png_bench.cpp, docs/performance.md).
 // Peak RSS is reported by every mode (from /proc/self/status, VmHWM).
 #include <Eigen/Dense>
 #include <algorithm>
@@ -46,6 +52,11 @@ using Clock = std::chrono::steady_clock;
 namespace pcasweep::bench {
 // bench/entropy_bench.cpp: zstd against the adaptive range coder, whole-file sizes.
 int mode_entropy(const std::vector<std::string>& images, const std::string& qualities, const std::string& methods);
+// bench/ssim_bench.cpp: SSIM and MSE cost, former code against the accumulators.
+int mode_ssim(int width, int height, int channels, const std::string& bits, const std::string& threads, int repeat,
+              int band);
+// bench/png_bench.cpp: PNG writers, speed, size and peak RSS.
+int mode_png(const std::map<std::string, std::string>& named);
 }  // namespace pcasweep::bench
 
 namespace {
@@ -309,7 +320,7 @@ int mode_crossover(const Args& a) {
 
 int main(int argc, char** argv) {
   if (argc < 2) {
-    std::cerr << "usage: pcasweep-bench solve|gemm|orth|crossover|entropy [options] (see bench/bench_main.cpp)\n";
+    std::cerr << "usage: pcasweep-bench solve|gemm|orth|crossover|entropy|png [options] (see bench/bench_main.cpp)\n";
     return 2;
   }
   try {
@@ -319,8 +330,14 @@ int main(int argc, char** argv) {
     if (mode == "gemm") return mode_gemm(a);
     if (mode == "orth") return mode_orth(a);
     if (mode == "crossover") return mode_crossover(a);
+    if (mode == "png") return pcasweep::bench::mode_png(a.named);
     if (mode == "entropy")
       return pcasweep::bench::mode_entropy(a.positional, a.get("qualities", "40,60,75,90"), a.get("methods", "pca,dct"));
+    if (mode == "ssim")
+      return pcasweep::bench::mode_ssim(std::stoi(a.get("width", "6000")), std::stoi(a.get("height", "4000")),
+                                        std::stoi(a.get("channels", "3")), a.get("bits", "8,16"),
+                                        a.get("threads", "1,2"), std::stoi(a.get("repeat", "3")),
+                                        std::stoi(a.get("band", "0")));
     std::cerr << "pcasweep-bench: unknown mode " << mode << "\n";
     return 2;
   } catch (const Error& e) {
