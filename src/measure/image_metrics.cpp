@@ -28,8 +28,9 @@ struct LaneSums {
   std::uint32_t max_abs = 0;
 };
 
-// Samples per inner block: each 64-bit lane adds at most kBlock/A values
-// below 2^32, far from overflowing, before the block is moved to 128 bits.
+// Samples per inner block, before rounding down to whole groups of lanes: each
+// 64-bit lane adds at most kBlock/A values below 2^32, far from overflowing,
+// before the block is moved to 128 bits.
 constexpr std::size_t kBlock = std::size_t(1) << 20;
 
 // Sums n samples (n a multiple of A) into lanes[0..A). A is a multiple of the
@@ -37,8 +38,11 @@ constexpr std::size_t kBlock = std::size_t(1) << 20;
 // fixed-size lane arrays, unsigned arithmetic, no branches.
 template <int A>
 void sum_lanes(const std::uint16_t* __restrict x, const std::uint16_t* __restrict y, std::size_t n, LaneSums& out) {
-  for (std::size_t start = 0; start < n; start += kBlock) {
-    const std::size_t end = std::min(n, start + kBlock);
+  // Blocks of whole lane groups: a block that ended inside a group would read
+  // past its end and start the next block with every lane on another channel.
+  constexpr std::size_t block = kBlock - kBlock % std::size_t(A);
+  for (std::size_t start = 0; start < n; start += block) {
+    const std::size_t end = std::min(n, start + block);
     std::uint64_t sq[A] = {}, sx[A] = {}, sxx[A] = {};
     std::uint32_t mx[A] = {};
     for (std::size_t k = start; k < end; k += A) {

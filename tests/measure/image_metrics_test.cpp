@@ -159,33 +159,55 @@ TEST_CASE("quality accumulator: any split into bands gives the whole-image figur
 }
 
 // Source: the definitions in measure/image_metrics.hpp, evaluated here with
-// plain long double loops (exact for these integer sums) on an image large
+// plain long double loops (exact for these integer sums) on images large
 // enough to cross the accumulator's 2^20-sample blocks and its two-thread split.
-TEST_CASE("quality accumulator: exact sums on a large 16-bit image, 1 and 2 threads, inside a parallel region") {
-  Image x, y;
-  noisy_pair(1100, 1000, 1, 16, 5, 20000, x, y);
-  long double sq = 0, sum = 0, sum2 = 0, mx = 0;
-  for (std::size_t i = 0; i < x.samples.size(); ++i) {
-    const long double a = x.samples[i], e = a - (long double)y.samples[i];
-    sq += e * e, sum += a, sum2 += a * a, mx = std::max(mx, std::abs(e));
-  }
-  const long double n = (long double)x.samples.size();
-  const long double centred = sum2 - sum * sum / n;
-  const int saved = omp_get_max_threads();
-  omp_set_num_threads(1);
-  const ImageQuality one = compare_images(x, y);
-  omp_set_num_threads(2);
-  const ImageQuality two = compare_images(x, y);
-  omp_set_num_threads(saved);
-  check_same(one, two);
-  CHECK(one.mse == double(sq / n));
-  CHECK(one.max_abs_error == double(mx));
-  CHECK(one.relative_error == doctest::Approx(double(std::sqrt(sq / centred))).epsilon(1e-14));
-  std::vector<ImageQuality> inside(2);
+// Three channels use 12 lanes, which do not divide 2^20: a block that ended
+// inside a lane group once moved every later lane onto another channel and
+// read past the end (PSNR of a 24 MP JPEG came out at 9 dB instead of 40).
+TEST_CASE("quality accumulator: exact sums on large 1- and 3-channel images, 1 and 2 threads, bands, inside a parallel region") {
+  for (int c : {1, 3}) {
+    CAPTURE(c);
+    Image x, y;
+    // 3 channels: one row is 3300 samples, so 64-row bands (211200 samples) and the
+    // whole image (3.3e6 samples) both end blocks at sizes that are not multiples of 2^20.
+    noisy_pair(1100, 1000, c, 16, 5, 20000, x, y);
+    std::vector<long double> sq(std::size_t(c), 0);
+    long double mx = 0;
+    std::vector<long double> chan_sum(std::size_t(c), 0), chan_sum2(std::size_t(c), 0);
+    for (std::size_t i = 0; i < x.samples.size(); ++i) {
+      const long double a = x.samples[i], e = a - (long double)y.samples[i];
+      sq[i % std::size_t(c)] += e * e, mx = std::max(mx, std::abs(e));
+      chan_sum[i % std::size_t(c)] += a, chan_sum2[i % std::size_t(c)] += a * a;
+    }
+    const long double pixels = (long double)(x.samples.size() / std::size_t(c));
+    long double total_sq = 0, centred = 0;
+    for (int ch = 0; ch < c; ++ch) {
+      total_sq += sq[std::size_t(ch)];
+      centred += chan_sum2[std::size_t(ch)] - chan_sum[std::size_t(ch)] * chan_sum[std::size_t(ch)] / pixels;
+    }
+    const int saved = omp_get_max_threads();
+    omp_set_num_threads(1);
+    const ImageQuality one = compare_images(x, y);
+    omp_set_num_threads(2);
+    const ImageQuality two = compare_images(x, y);
+    omp_set_num_threads(saved);
+    check_same(one, two);
+    CHECK(one.mse == double(total_sq / (pixels * c)));
+    for (int ch = 0; ch < c; ++ch) CHECK(one.channel_mse[std::size_t(ch)] == double(sq[std::size_t(ch)] / pixels));
+    CHECK(one.max_abs_error == double(mx));
+    CHECK(one.relative_error == doctest::Approx(double(std::sqrt(total_sq / centred))).epsilon(1e-14));
+    // Bands of 64 rows, as the JPEG baseline of the rate-distortion study feeds them.
+    QualityAccumulator banded(c, 16);
+    const std::size_t band = std::size_t(x.width) * std::size_t(c) * 64;
+    for (std::size_t i = 0; i < x.samples.size(); i += band)
+      banded.add(x.samples.data() + i, y.samples.data() + i, std::min(band, x.samples.size() - i));
+    check_same(banded.result(), one);
+    std::vector<ImageQuality> inside(2);
 #pragma omp parallel for num_threads(2) schedule(static)
-  for (int k = 0; k < 2; ++k) inside[std::size_t(k)] = compare_images(x, y);
-  check_same(inside[0], one);
-  check_same(inside[1], one);
+    for (int k = 0; k < 2; ++k) inside[std::size_t(k)] = compare_images(x, y);
+    check_same(inside[0], one);
+    check_same(inside[1], one);
+  }
 }
 
 TEST_CASE("quality accumulator: merge pools like compare_image_sets, in any order") {
