@@ -5,6 +5,7 @@
 #include <string>
 
 #include "core/error.hpp"
+#include "observe/raster.hpp"
 
 namespace pcasweep {
 
@@ -79,7 +80,7 @@ std::vector<float> step_sizes(const Eigen::VectorXd& variances, double theta) {
 }
 
 std::int32_t quantize_coefficient(double coefficient, float step) {
-  const double r = std::round(coefficient / double(step));
+  const double r = round_half_away(coefficient / double(step));
   if (!(std::fabs(r) < 1073741824.0)) {
     throw usage_error("quantiser step " + std::to_string(step) +
                       " is too small for the coefficients; lower --quality or --target-psnr");

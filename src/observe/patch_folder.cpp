@@ -7,6 +7,7 @@
 #include <cstring>
 
 #include "core/error.hpp"
+#include "observe/raster.hpp"
 
 namespace pcasweep {
 
@@ -122,7 +123,7 @@ void PatchFolder::take_quantized(std::uint16_t* out, int rows, double max_value,
       const double w = overlapping_ ? cover_y * cover_x_[std::size_t(x)] : 1.0;
       for (int ch = 0; ch < channels_; ++ch) {
         const double raw = row[std::size_t(x) * channels_ + ch];
-        double v = std::round(overlapping_ ? raw / w : raw);
+        double v = round_half_away(overlapping_ ? raw / w : raw);
         if (v < 0.0) {
           v = 0.0;
           ++n;

@@ -16,7 +16,7 @@ Image quantize(const Raster& raster, const Image& like, std::size_t* clipped) {
   std::size_t clip_count = 0;
 #pragma omp parallel for reduction(+ : clip_count) schedule(static)
   for (std::ptrdiff_t i = 0; i < std::ptrdiff_t(raster.samples.size()); ++i) {
-    double v = std::round(raster.samples[i]);
+    double v = round_half_away(raster.samples[i]);
     if (v < 0.0) { v = 0.0; ++clip_count; }
     else if (v > top) { v = top; ++clip_count; }
     else if (std::isnan(v)) { v = 0.0; ++clip_count; }
