@@ -1,4 +1,5 @@
 // pcasweep sweep IMAGE --out DIR: reconstruct at several k and measure each.
+#include <cstdio>
 #include <iostream>
 #include <memory>
 
@@ -83,7 +84,12 @@ Action setup_sweep(CLI::App& sub) {
     if (codable && !args->no_rd) {
       const RdReport rd = write_rate_distortion(analysis, RdSettings{}, args->out);
       extra["rate_distortion"] = rd.json;
-      rd_line = "rate-distortion (rd.csv, rd.svg): " + rd.sentence + "\n";
+      int coded_points = 0;
+      for (int n : rd.cost.coded_pass_points) coded_points += n;
+      char cost[200];
+      std::snprintf(cost, sizeof cost, " (study: %d PCA/DCT points in %zu pass(es) and %d JPEG points, %.1f s)",
+                    coded_points, rd.cost.coded_pass_points.size(), rd.cost.jpeg_points, rd.cost.total_seconds);
+      rd_line = "rate-distortion (rd.csv, rd.svg): " + rd.sentence + cost + "\n";
     }
     SweepOutput output;
     output.png.level = args->png_level;

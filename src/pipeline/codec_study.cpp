@@ -1,6 +1,7 @@
 #include "pipeline/codec_study.hpp"
 
 #include <algorithm>
+#include <chrono>
 #include <exception>
 #include <limits>
 #include <cstdio>
@@ -230,7 +231,12 @@ bool brackets(const std::vector<RdPoint>& points, const std::string& method, dou
 
 }  // namespace
 
-std::vector<RdPoint> rate_distortion(const ImageAnalysis& a, const RdSettings& settings, const std::string& jpeg_dir) {
+std::vector<RdPoint> rate_distortion(const ImageAnalysis& a, const RdSettings& settings, const std::string& jpeg_dir,
+                                     RdCost* cost) {
+  using Clock = std::chrono::steady_clock;
+  const auto seconds_since = [](Clock::time_point t) { return std::chrono::duration<double>(Clock::now() - t).count(); };
+  const Clock::time_point study_start = Clock::now();
+  RdCost spent;
   const PatchLayout* layout = a.patches();
   if (!layout || a.sources.size() != 1) {
     throw usage_error("rate-distortion comparison needs one image cut into patches");
@@ -272,7 +278,10 @@ std::vector<RdPoint> rate_distortion(const ImageAnalysis& a, const RdSettings& s
     in.layout = layout;
     in.decoder_bases = {&bases[0], &bases[1]};
     in.codec.zstd_level = settings.zstd_level;
+    const Clock::time_point pass_start = Clock::now();
     const auto results = run_patch_sweep(in, sweep_points);
+    spent.coded_pass_seconds.push_back(seconds_since(pass_start));
+    spent.coded_pass_points.push_back(int(sweep_points.size()));
     for (std::size_t i = 0; i < wanted.size(); ++i)
       points.push_back(coded_point(method_name[wanted[i].first], wanted[i].second, results[i], image));
   };
@@ -314,6 +323,7 @@ std::vector<RdPoint> rate_distortion(const ImageAnalysis& a, const RdSettings& s
     std::vector<RdPoint> jpeg(qs.size());
     std::vector<std::string> files(qs.size());
     std::exception_ptr failure;
+    const Clock::time_point jpeg_start = Clock::now();
 #pragma omp parallel for schedule(dynamic, 1)
     for (std::ptrdiff_t i = 0; i < std::ptrdiff_t(qs.size()); ++i) {
       try {
@@ -324,6 +334,8 @@ std::vector<RdPoint> rate_distortion(const ImageAnalysis& a, const RdSettings& s
       }
     }
     if (failure) std::rethrow_exception(failure);
+    spent.jpeg_seconds = seconds_since(jpeg_start);
+    spent.jpeg_points = int(qs.size());
     for (std::size_t i = 0; i < qs.size(); ++i) {
       RdPoint& p = jpeg[i];
       if (!jpeg_dir.empty()) {
@@ -358,6 +370,8 @@ std::vector<RdPoint> rate_distortion(const ImageAnalysis& a, const RdSettings& s
   std::stable_sort(points.begin(), points.end(), [&](const RdPoint& x, const RdPoint& y) {
     return rank(x.method) != rank(y.method) ? rank(x.method) < rank(y.method) : x.bits_per_pixel < y.bits_per_pixel;
   });
+  spent.total_seconds = seconds_since(study_start);
+  if (cost) *cost = spent;
   return points;
 }
 
@@ -416,7 +430,7 @@ RdReport write_rate_distortion(const ImageAnalysis& a, const RdSettings& setting
   std::filesystem::create_directories(out_dir, ec);
   if (ec) throw data_error(out_dir + ": cannot create output folder: " + ec.message());
   RdReport report;
-  report.points = rate_distortion(a, settings, (std::filesystem::path(out_dir) / "jpeg").string());
+  report.points = rate_distortion(a, settings, (std::filesystem::path(out_dir) / "jpeg").string(), &report.cost);
   report.sentence = rd_sentence(report.points, 1.0);
   nlohmann::json at = nlohmann::json::object();
   for (double bpp : {0.5, 1.0, 2.0}) {
@@ -431,6 +445,12 @@ RdReport write_rate_distortion(const ImageAnalysis& a, const RdSettings& setting
                           "fixed DCT-II basis, same quantiser and entropy coder), jpeg is libjpeg-turbo's baseline "
                           "JPEG (4:2:0, optimised Huffman) decoded by libjpeg-turbo, gaussian_bound is R(D) of a Gaussian source with the "
                           "eigenvalues as variances (no side information)"},
+                 {"cost", {{"note", "wall seconds on this run's machine and threads"},
+                           {"coded_pass_seconds", report.cost.coded_pass_seconds},
+                           {"coded_pass_points", report.cost.coded_pass_points},
+                           {"jpeg_seconds", report.cost.jpeg_seconds},
+                           {"jpeg_points", report.cost.jpeg_points},
+                           {"total_seconds", report.cost.total_seconds}}},
                  {"points", to_json(rd_table(report.points))}};
   write_file_atomic((std::filesystem::path(out_dir) / "rd.csv").string(), render_csv(rd_table(report.points)));
 

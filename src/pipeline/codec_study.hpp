@@ -69,8 +69,17 @@ struct RdSettings {
 // (written under jpeg_dir/<stem>.q<Q>.jpg when jpeg_dir is not empty, else only sized),
 // and the Gaussian bound R(D) = Σ ½log2(λ_i/D_i) per observation from the eigenvalues, in
 // bits per pixel (N·R / (W·H)). Returns the points, each curve by increasing bits per pixel.
+// cost (if given) receives what the study took: wall seconds of each streaming
+// pass over the image and of the JPEG points, and how many points each measured.
+struct RdCost {
+  std::vector<double> coded_pass_seconds;  // PCA and DCT points; a second entry for the refinement pass
+  std::vector<int> coded_pass_points;      // points measured in each of those passes
+  double jpeg_seconds = 0.0;               // every JPEG quality: encode, decode, measure (in parallel)
+  int jpeg_points = 0;
+  double total_seconds = 0.0;              // the whole study, bound and sorting included
+};
 std::vector<RdPoint> rate_distortion(const ImageAnalysis& analysis, const RdSettings& settings,
-                                     const std::string& jpeg_dir);
+                                     const std::string& jpeg_dir, RdCost* cost = nullptr);
 
 // PSNR of `method` at `bpp`, linearly interpolated between the two measured points that
 // bracket it (NaN outside the curve). `coded` receives the components of the nearer point.
@@ -87,7 +96,8 @@ std::string rd_sentence(const std::vector<RdPoint>& points, double bpp);
 struct RdReport {
   std::vector<RdPoint> points;
   std::string sentence;   // rd_sentence at 1.0 bpp
-  nlohmann::json json;    // {"sentence", "at_bits_per_pixel": {...}, "points": [...]}, for summary.json
+  RdCost cost;            // what the study took
+  nlohmann::json json;    // {"sentence", "psnr_db_at_bits_per_pixel": {...}, "cost": {...}, "points": [...]}, for summary.json
 };
 
 // Runs rate_distortion() and writes into out_dir (created if missing): jpeg/<stem>.q<Q>.jpg,
