@@ -105,8 +105,9 @@ void filter_row(PngFilter filter, const std::uint8_t* raw, const std::uint8_t* p
   }
 }
 
-int zlib_strategy(PngStrategy s) {
+int zlib_strategy(PngStrategy s, int level) {
   switch (s) {
+    case PngStrategy::automatic: return level == 1 ? Z_RLE : Z_DEFAULT_STRATEGY;
     case PngStrategy::rle: return Z_RLE;
     case PngStrategy::filtered: return Z_FILTERED;
     case PngStrategy::standard: break;
@@ -165,7 +166,7 @@ class PngRowWriter::Encoder {
     for (std::size_t k = 0; k < groups_; ++k) {
       Group& g = group_[k];
       std::memset(&g.z, 0, sizeof g.z);
-      if (deflateInit2(&g.z, options.level, Z_DEFLATED, -15, 8, zlib_strategy(options.strategy)) != Z_OK) {
+      if (deflateInit2(&g.z, options.level, Z_DEFLATED, -15, 8, zlib_strategy(options.strategy, options.level)) != Z_OK) {
         throw data_error(name + ": cannot start the deflate compressor");
       }
       g.initialised = true;

@@ -175,7 +175,7 @@ TEST_CASE("png: every level, filter and strategy decodes to the same samples") {
   using S = pcasweep::PngStrategy;
   for (int level = 0; level <= 9; ++level)
     for (F f : {F::none, F::sub, F::up, F::average, F::paeth, F::adaptive})
-      for (S s : {S::standard, S::rle, S::filtered}) {
+      for (S s : {S::automatic, S::standard, S::rle, S::filtered}) {
         CAPTURE(level);
         PngWriteOptions o;
         o.level = level;
@@ -184,6 +184,15 @@ TEST_CASE("png: every level, filter and strategy decodes to the same samples") {
         CHECK(same_image(pcasweep::decode_image(pcasweep::encode_png(im, o), "a.png"), im));
         CHECK(same_image(pcasweep::decode_image(pcasweep::encode_png(im16, o), "b.png"), im16));
       }
+  // automatic is rle at level 1 and zlib's default strategy elsewhere (io/png.hpp): the same bytes.
+  for (int level : {1, 2, 6, 9}) {
+    CAPTURE(level);
+    PngWriteOptions a, explicit_choice;
+    a.level = explicit_choice.level = level;
+    explicit_choice.strategy = level == 1 ? S::rle : S::standard;
+    CHECK(pcasweep::encode_png(im, a) == pcasweep::encode_png(im, explicit_choice));
+  }
+  CHECK(PngWriteOptions{}.strategy == S::automatic);
   // Level 0 stores: the file is at least the filtered raw size (rows·(1 + row bytes)).
   PngWriteOptions store;
   store.level = 0;
