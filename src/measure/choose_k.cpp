@@ -161,19 +161,38 @@ double gavish_donoho_omega(double beta) {
   return 0.56 * beta * beta * beta - 0.95 * beta * beta + 1.82 * beta + 1.43;
 }
 
-int gavish_donoho_rank(const Eigen::VectorXd& singular_values, double beta) {
-  const Eigen::Index m = singular_values.size();
-  if (m == 0) return -1;
-  std::vector<double> sorted(singular_values.data(), singular_values.data() + m);
-  std::sort(sorted.begin(), sorted.end());
-  const double median = 0.5 * (sorted[std::size_t((m - 1) / 2)] + sorted[std::size_t(m / 2)]);
-  if (!(median > 1e-12 * sorted.back())) return -1;
-  const double tau = gavish_donoho_omega(beta) * median;
-  int k = 0;
-  for (Eigen::Index i = 0; i < m; ++i)
-    if (singular_values(i) > tau) ++k;
-  return k;
+namespace {
+
+// σ_i = √((N−1)·λ_i), the i-th singular value of the centred N×d data, for
+// i < min(N, d). The centred matrix has rank ≤ N − 1, so σ_i = 0 for i ≥ N − 1
+// even when the solver stopped at r; NaN where it is unknown (r ≤ i < N − 1).
+double centred_singular_value(const Basis& basis, Eigen::Index i) {
+  if (i < basis.rank()) return std::sqrt(double(basis.observation_count - 1) * std::max(0.0, basis.eigenvalues(i)));
+  return i >= basis.observation_count - 1 ? 0.0 : std::numeric_limits<double>::quiet_NaN();
 }
+
+// The noise threshold of Gavish & Donoho for an unknown noise level:
+// τ = ω(β)·median σ, β = min(N, d)/max(N, d). median is NaN when the middle of
+// the spectrum is unknown; estimable is false when the median is zero (or
+// negligible against σ_1), i.e. the noise level cannot be estimated.
+struct GavishDonohoThreshold {
+  double beta = 0.0, omega = 0.0, median = 0.0, tau = 0.0;
+  bool estimable = false;
+};
+
+// basis: N ≥ 2 observations, d ≥ 1. Returns the threshold's parts.
+GavishDonohoThreshold gavish_donoho_threshold(const Basis& basis) {
+  const Eigen::Index n = basis.observation_count, d = basis.dimension(), m = std::min(n, d);
+  GavishDonohoThreshold t;
+  t.beta = double(m) / double(std::max(n, d));
+  t.omega = gavish_donoho_omega(t.beta);
+  t.median = 0.5 * (centred_singular_value(basis, (m - 1) / 2) + centred_singular_value(basis, m / 2));
+  t.tau = t.omega * t.median;
+  t.estimable = t.median > 1e-12 * centred_singular_value(basis, 0);  // false for NaN too
+  return t;
+}
+
+}  // namespace
 
 KSuggestion rule_gavish_donoho(const Basis& basis) {
   KSuggestion s;
@@ -185,33 +204,24 @@ KSuggestion rule_gavish_donoho(const Basis& basis) {
     s.meaning = "needs at least 2 observations";
     return s;
   }
-  const double beta = double(m) / double(std::max(n, d));
-  // The centred data matrix has rank ≤ N − 1, so singular values from index
-  // N − 1 on are zero and known even when the solver stopped at r.
-  auto known = [&](Eigen::Index i) { return i < r || i >= n - 1; };
-  const Eigen::Index mid_lo = (m - 1) / 2, mid_hi = m / 2;
-  if (!known(mid_lo) || !known(mid_hi)) {
+  const GavishDonohoThreshold t = gavish_donoho_threshold(basis);
+  if (std::isnan(t.median)) {
     s.meaning = "needs the full spectrum: the median singular value is unknown";
-    s.note = truncated_note(basis) + "; the median is at component " + std::to_string(mid_hi + 1) +
+    s.note = truncated_note(basis) + "; the median is at component " + std::to_string(m / 2 + 1) +
              " of " + std::to_string(m) + " (use --solver exact)";
     return s;
   }
-  Eigen::VectorXd sv = Eigen::VectorXd::Zero(m);
-  for (Eigen::Index i = 0; i < std::min(r, m); ++i)
-    sv(i) = std::sqrt(double(n - 1) * std::max(0.0, basis.eigenvalues(i)));
-  const double median = 0.5 * (sv(mid_lo) + sv(mid_hi));
-  const double omega = gavish_donoho_omega(beta);
-  if (!(median > 1e-12 * sv(0))) {
+  if (!t.estimable) {
     s.meaning = "does not apply: over half the singular values are zero, so the noise level cannot be estimated";
     s.note = "see the near-zero eigenvalue diagnosis";
     return s;
   }
   int k = 0;
   for (Eigen::Index i = 0; i < std::min(r, m); ++i)
-    if (sv(i) > omega * median) ++k;
+    if (centred_singular_value(basis, i) > t.tau) ++k;
   s.k = k;
-  s.meaning = std::to_string(k) + " singular values stand above the noise threshold " + fmt(omega, 4) +
-              " x median (beta = " + fmt(beta, 3) + ")";
+  s.meaning = std::to_string(k) + " singular values stand above the noise threshold " + fmt(t.omega, 4) +
+              " x median (beta = " + fmt(t.beta, 3) + ")";
   if (k == std::min(r, m) && r < m) {
     s.lower_bound = true;
     s.note = truncated_note(basis) + " and all of them pass: at least that many";
@@ -220,18 +230,11 @@ KSuggestion rule_gavish_donoho(const Basis& basis) {
 }
 
 double gavish_donoho_threshold_eigenvalue(const Basis& basis) {
-  const Eigen::Index n = basis.observation_count, d = basis.dimension(), r = basis.rank();
-  const Eigen::Index m = std::min(n, d);
-  const double nan = std::numeric_limits<double>::quiet_NaN();
-  if (n < 2 || m < 1 || r < 1) return nan;
-  auto sv = [&](Eigen::Index i) {
-    if (i < r) return std::sqrt(double(n - 1) * std::max(0.0, basis.eigenvalues(i)));
-    return i >= n - 1 ? 0.0 : nan;
-  };
-  const double median = 0.5 * (sv((m - 1) / 2) + sv(m / 2));
-  if (!(median > 1e-12 * sv(0))) return nan;
-  const double tau = gavish_donoho_omega(double(m) / double(std::max(n, d))) * median;
-  return tau * tau / double(n - 1);
+  const Eigen::Index n = basis.observation_count, m = std::min(n, basis.dimension());
+  if (n < 2 || m < 1 || basis.rank() < 1) return std::numeric_limits<double>::quiet_NaN();
+  const GavishDonohoThreshold t = gavish_donoho_threshold(basis);
+  if (!t.estimable) return std::numeric_limits<double>::quiet_NaN();
+  return t.tau * t.tau / double(n - 1);
 }
 
 std::vector<KSuggestion> spectrum_rules(const Basis& basis, const std::vector<double>& keep_fractions) {

@@ -62,10 +62,6 @@ KSuggestion rule_broken_stick(const Basis& basis);
 
 // Gavish–Donoho approximation ω(β) ≈ 0.56β³ − 0.95β² + 1.82β + 1.43, β in (0, 1].
 double gavish_donoho_omega(double beta);
-// singular_values: all min(N, d) singular values of the centred N×d data
-// matrix, decreasing; beta = min(N, d)/max(N, d). Returns the number above
-// ω(β)·median, or -1 when the median is zero (noise level not estimable).
-int gavish_donoho_rank(const Eigen::VectorXd& singular_values, double beta);
 // The rule on a basis: σ_i = √((N−1)·λ_i). Needs the median singular value,
 // so it answers with r < d only when r covers the middle of the spectrum.
 KSuggestion rule_gavish_donoho(const Basis& basis);
