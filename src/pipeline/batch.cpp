@@ -97,7 +97,7 @@ double value_at(const FileResult& f, int k, const std::string& column) {
 }
 
 double stored_at(const FileResult& f, int k) {
-  return column_index(f.sweep, kStoredColumn) >= 0 ? value_at(f, k, kStoredColumn) : value_at(f, k, kStoredColumnOld);
+  return value_at(f, k, kStoredColumn);
 }
 
 FileQuality quality_at(const FileResult& f, int k) {
@@ -158,11 +158,6 @@ BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settin
     throw usage_error("--train-fraction must be in (0, 1]");
   if (settings.coding.enabled && settings.basis == BasisMode::shared)
     throw usage_error("--quality (coded bytes) works with --basis per-file only: the codec embeds each file's own basis");
-  if (settings.target.ssim) {
-    const Table probe = sweep_table({}, {});
-    if (column_index(probe, kSsimColumn) < 0)
-      throw usage_error("--target-ssim: this build does not measure SSIM in the sweep; use --target-psnr");
-  }
   const auto start = std::chrono::steady_clock::now();
   BatchResult result;
   result.inputs = inputs;

@@ -15,7 +15,7 @@
 // batch goes on. Files are swept in parallel by `threads` workers and the
 // linear algebra inside each file runs on one thread (OpenMP and Eigen), so
 // the cores are not oversubscribed (measured faster: docs/batch.md).
-// write_batch_outputs() writes batch.csv, aggregate.csv, recommendation.csv,
+// write_batch_outputs() writes batch.csv, aggregate.csv, failing_files.csv,
 // failures.csv, summary.json and report.html (docs/batch.md), each atomically.
 #pragma once
 

@@ -13,9 +13,8 @@ namespace pcasweep::detail {
 // are; these are the ones the aggregates and the recommendation read.
 inline const std::string kSsimColumn = "ssim";
 inline const std::string kBytesColumn = "bytes";
-// Numbers kept (basis, coefficients, mean): "stored_values_estimate" (older tables: "stored_values").
+// Numbers kept (basis, coefficients, mean), the column of sweep_table() (pipeline/image_study.hpp).
 inline const std::string kStoredColumn = "stored_values_estimate";
-inline const std::string kStoredColumnOld = "stored_values";
 
 // requested: the --k list (empty: default_ks(rank)). Returns the ks for a file
 // whose basis has `rank` components: each k clamped to rank, de-duplicated, ascending.
