@@ -41,10 +41,9 @@ enum class PngFilter { none, sub, up, average, paeth, adaptive };
 
 // zlib's deflate strategy for the IDAT data. rle (Z_RLE) looks only for runs (distance 1), and
 // zlib then ignores the level; filtered: zlib's Z_FILTERED; standard: Z_DEFAULT_STRATEGY.
-// automatic: rle at level 1, standard at every other level. On 24 MP photo-like 8-bit,
-// 16-bit and blocky (patch-PCA-like) images, Paeth-filtered, two threads, rle was both faster
-// and smaller than level 1's default strategy (e.g. 8-bit 0.64 s / 48.9 % of raw against
-// 0.81 s / 57.6 %; docs/performance.md, "PNG writing"), so level 1 means rle.
+// automatic: rle at level 1, standard at every other level: on photo-like 8-bit, 16-bit and
+// blocky (patch-PCA-like) images rle was both faster and smaller than level 1's default
+// strategy (the figures: docs/performance.md, "PNG writing"), so level 1 means rle.
 enum class PngStrategy { automatic, standard, rle, filtered };
 
 struct PngWriteOptions {
