@@ -27,6 +27,7 @@
 #include <vector>
 
 #include "core/error.hpp"
+#include "core/random.hpp"
 #include "io/image.hpp"
 #include "measure/image_metrics.hpp"
 #include "measure/ssim.hpp"
@@ -172,15 +173,10 @@ namespace {
 
 using Clock = std::chrono::steady_clock;
 
-std::uint64_t mix(std::uint64_t z) {
-  z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ull;
-  z = (z ^ (z >> 27)) * 0x94D049BB133111EBull;
-  return z ^ (z >> 31);
-}
 // Approximately normal (sum of 4 uniforms, centred, sd 1), from a hash of i.
 double noise(std::uint64_t i) {
   double s = 0;
-  for (int k = 0; k < 4; ++k) s += double(mix(i * 4 + std::uint64_t(k) + 0x9E3779B97F4A7C15ull) >> 11) / 9007199254740992.0;
+  for (int k = 0; k < 4; ++k) s += double(splitmix64(i * 4 + std::uint64_t(k)) >> 11) / 9007199254740992.0;
   return (s - 2.0) * std::sqrt(3.0);
 }
 

@@ -40,6 +40,7 @@
 #include <vector>
 
 #include "core/error.hpp"
+#include "core/random.hpp"
 #include "io/image.hpp"
 
 namespace {
@@ -49,13 +50,8 @@ constexpr double kPi = 3.14159265358979323846;
 
 // ---------------------------------------------------------------- numbers
 
-// splitmix64 finaliser: a well-mixed 64-bit hash of a 64-bit value.
-std::uint64_t mix64(std::uint64_t z) {
-  z += 0x9E3779B97F4A7C15ull;
-  z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ull;
-  z = (z ^ (z >> 27)) * 0x94D049BB133111EBull;
-  return z ^ (z >> 31);
-}
+// SplitMix64 (core/random.hpp): a well-mixed 64-bit hash of a 64-bit value.
+std::uint64_t mix64(std::uint64_t z) { return pcasweep::splitmix64(z); }
 
 double unit_from_bits(std::uint64_t bits) { return double(bits >> 11) * 0x1.0p-53; }  // [0, 1)
 

@@ -30,6 +30,7 @@
 #include <vector>
 
 #include "core/error.hpp"
+#include "core/random.hpp"
 #include "io/image.hpp"
 
 namespace {

@@ -1,4 +1,5 @@
 #include "solve/randomized.hpp"
+#include "core/random.hpp"
 
 #include <Eigen/Cholesky>
 #include <Eigen/QR>
@@ -14,15 +15,6 @@
 namespace pcasweep {
 
 namespace {
-
-// SplitMix64's finaliser (Steele, Lea & Flood, OOPSLA 2014): a bijective
-// 64-bit mix, used here as a counter-based generator.
-std::uint64_t splitmix64(std::uint64_t x) {
-  x += 0x9e3779b97f4a7c15ULL;
-  x = (x ^ (x >> 30)) * 0xbf58476d1ce4e5b9ULL;
-  x = (x ^ (x >> 27)) * 0x94d049bb133111ebULL;
-  return x ^ (x >> 31);
-}
 
 // Uniform in (0, 1): the top 53 bits, shifted off zero by half a step.
 double open_unit(std::uint64_t bits) { return (double(bits >> 11) + 0.5) * 0x1.0p-53; }

@@ -12,6 +12,7 @@
 #include "codec/image_codec.hpp"
 #include "codec/quantize.hpp"
 #include "core/error.hpp"
+#include "core/random.hpp"
 #include "pipeline/codec_study.hpp"
 #include "pipeline/image_study.hpp"
 
@@ -23,13 +24,8 @@ namespace {
 // every machine sees the same samples).
 Image codec_scene(int width, int height, int channels, int bits, std::uint64_t seed) {
   Image im = make_image(width, height, channels, bits);
-  std::uint64_t state = seed;
-  auto next = [&]() {
-    std::uint64_t z = (state += 0x9E3779B97F4A7C15ull);
-    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ull;
-    z = (z ^ (z >> 27)) * 0x94D049BB133111EBull;
-    return double((z ^ (z >> 31)) >> 11) * 0x1.0p-53;
-  };
+  SplitMix64Stream stream(seed);
+  auto next = [&]() { return double(stream.next() >> 11) * 0x1.0p-53; };
   const double top = bits == 16 ? 65535.0 : 255.0;
   for (int y = 0; y < height; ++y)
     for (int x = 0; x < width; ++x)

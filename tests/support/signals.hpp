@@ -13,6 +13,7 @@
 #include <string>
 #include <unistd.h>
 
+#include "core/random.hpp"
 #include "io/signal.hpp"
 
 namespace pcasweep::testing {
@@ -20,20 +21,15 @@ namespace pcasweep::testing {
 // SplitMix64 (Steele, Lea & Flood 2014) with a Box–Muller normal.
 class SignalRng {
  public:
-  explicit SignalRng(std::uint64_t seed) : state_(seed) {}
-  std::uint64_t next() {
-    std::uint64_t z = (state_ += 0x9E3779B97F4A7C15ull);
-    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ull;
-    z = (z ^ (z >> 27)) * 0x94D049BB133111EBull;
-    return z ^ (z >> 31);
-  }
+  explicit SignalRng(std::uint64_t seed) : stream_(seed) {}
+  std::uint64_t next() { return stream_.next(); }
   double uniform() { return (double(next() >> 11) + 0.5) * 0x1.0p-53; }  // (0, 1)
   double normal() {
     return std::sqrt(-2.0 * std::log(uniform())) * std::cos(2.0 * std::numbers::pi * uniform());
   }
 
  private:
-  std::uint64_t state_;
+  SplitMix64Stream stream_;
 };
 
 // frames×channels of sinusoids, a drift and noise with standard deviation

@@ -14,24 +14,20 @@
 #include <string>
 
 #include "io/image.hpp"
+#include "core/random.hpp"
 
 namespace pcasweep::testing {
 
 // SplitMix64 (Steele, Lea & Flood 2014): a tiny, well-mixed, portable generator.
 class SplitMix64 {
  public:
-  explicit SplitMix64(std::uint64_t seed) : state_(seed) {}
-  std::uint64_t next() {
-    std::uint64_t z = (state_ += 0x9E3779B97F4A7C15ull);
-    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ull;
-    z = (z ^ (z >> 27)) * 0x94D049BB133111EBull;
-    return z ^ (z >> 31);
-  }
+  explicit SplitMix64(std::uint64_t seed) : stream_(seed) {}
+  std::uint64_t next() { return stream_.next(); }
   // Uniform in [0, 1).
   double uniform() { return double(next() >> 11) * (1.0 / 9007199254740992.0); }
 
  private:
-  std::uint64_t state_;
+  SplitMix64Stream stream_;
 };
 
 // A width×height image with `channels` channels at `bit_depth` (8 or 16):
