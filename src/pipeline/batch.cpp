@@ -242,8 +242,7 @@ BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settin
   const int workers = int(std::min<std::size_t>(std::size_t(settings.threads), std::max<std::size_t>(n, 1)));
   result.threads_used = workers;
   result.parallel_mode = "files";
-  const int eigen_threads_before = Eigen::nbThreads();
-  Eigen::setNbThreads(1);
+  const SerialLinearAlgebra serial(false);  // the worker threads set their own OpenMP teams below
   state.phase = "sweep";
   state.done = 0;
   state.total = n;
@@ -300,7 +299,6 @@ BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settin
     std::vector<std::thread> pool;
     for (int w = 0; w < workers; ++w) pool.emplace_back(work);
     for (auto& t : pool) t.join();
-    Eigen::setNbThreads(eigen_threads_before);
   }
   for (const auto& f : inputs.failed) result.failures.push_back(f);
   for (const auto& f : result.files)

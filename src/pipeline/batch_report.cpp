@@ -318,12 +318,7 @@ nlohmann::json write_batch_outputs(const BatchResult& r, const BatchSettings& s,
   if (s.write_report && !ok.empty()) {
     // The sample files are analysed again here, one at a time, on one thread
     // (see run_batch: OpenMP's small parallel regions cost more than they gain).
-    const int eigen_threads_before = Eigen::nbThreads();
-    Eigen::setNbThreads(1);
-#ifdef _OPENMP
-    const int omp_before = omp_get_max_threads();
-    omp_set_num_threads(1);
-#endif
+    const SerialLinearAlgebra serial(true);
     HtmlReport h;
     h.title = "pcasweep batch study: " + std::to_string(ok.size()) + " image(s)";
     h.headline.push_back(batch_summary_line(r, s));
@@ -568,10 +563,6 @@ nlohmann::json write_batch_outputs(const BatchResult& r, const BatchSettings& s,
       }
     }
     write_file_atomic(path_in("report.html"), render_report_html(h));
-    Eigen::setNbThreads(eigen_threads_before);
-#ifdef _OPENMP
-    omp_set_num_threads(omp_before);
-#endif
   }
   write_file_atomic(path_in("summary.json"), j.dump(2) + "\n");
   return j;
