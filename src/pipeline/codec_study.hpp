@@ -62,22 +62,26 @@ struct RdSettings {
   int zstd_level = 19;
 };
 
+// What a rate-distortion study took (wall seconds on the running machine and
+// threads), reported beside its points: one entry per streaming pass over the
+// image (the PCA and DCT points; a second entry for the refinement pass) and
+// the JPEG points.
+struct RdCost {
+  std::vector<double> coded_pass_seconds;  // each PCA/DCT pass
+  std::vector<int> coded_pass_points;      // points measured in each of those passes
+  double jpeg_seconds = 0.0;               // every JPEG quality: encode, decode, measure (in parallel)
+  int jpeg_points = 0;
+  double total_seconds = 0.0;              // the whole study, bound and sorting included
+};
+
 // For analysis with one image and the patches layout: PCA (own basis, k = r) and DCT
 // (k = d) through the codec at the qualities above — every point of both curves in one
 // streaming pass over the image (pipeline/patch_sweep.hpp) — JPEG (libjpeg-turbo, 4:2:0,
 // optimised Huffman) at each JPEG quality, encoded and decoded row by row, in parallel
 // (written under jpeg_dir/<stem>.q<Q>.jpg when jpeg_dir is not empty, else only sized),
 // and the Gaussian bound R(D) = Σ ½log2(λ_i/D_i) per observation from the eigenvalues, in
-// bits per pixel (N·R / (W·H)). Returns the points, each curve by increasing bits per pixel.
-// cost (if given) receives what the study took: wall seconds of each streaming
-// pass over the image and of the JPEG points, and how many points each measured.
-struct RdCost {
-  std::vector<double> coded_pass_seconds;  // PCA and DCT points; a second entry for the refinement pass
-  std::vector<int> coded_pass_points;      // points measured in each of those passes
-  double jpeg_seconds = 0.0;               // every JPEG quality: encode, decode, measure (in parallel)
-  int jpeg_points = 0;
-  double total_seconds = 0.0;              // the whole study, bound and sorting included
-};
+// bits per pixel (N·R / (W·H)). Returns the points, each curve by increasing bits per pixel;
+// `cost` (if given) receives what the study took.
 std::vector<RdPoint> rate_distortion(const ImageAnalysis& analysis, const RdSettings& settings,
                                      const std::string& jpeg_dir, RdCost* cost = nullptr);
 
