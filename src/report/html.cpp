@@ -117,13 +117,15 @@ td.num { text-align: right; font-variant-numeric: tabular-nums; }
 .charts { display: flex; flex-wrap: wrap; gap: 1rem; } .charts figure { margin: 0; max-width: 100%; }
 .charts svg { max-width: 100%; height: auto; }
 figure.thumb { display: inline-block; margin: .3rem .6rem .6rem 0; vertical-align: top; }
-figure.thumb img, .viewer img, .viewer canvas { max-width: 360px; width: 100%; height: auto; border: 1px solid var(--rule); }
-figcaption { font-size: .85rem; color: var(--muted); max-width: 360px; }
+/* Previews and crops at their natural size (one screen pixel per image pixel at 100 % zoom), so the scale
+   each heading states is the scale shown; narrower windows shrink them, never enlarge. */
+figure.thumb img, .viewer img, .viewer canvas { max-width: 100%; height: auto; border: 1px solid var(--rule); image-rendering: pixelated; }
+figcaption { font-size: .85rem; color: var(--muted); max-width: 512px; }
 img.pixelated { image-rendering: pixelated; width: 64px; height: 64px; }
 .components figure.thumb img { width: 64px; }
 .viewer { border: 1px solid var(--rule); border-radius: 6px; padding: .6rem .9rem; margin: 1rem 0; }
-.viewer .pair { display: flex; flex-wrap: wrap; gap: 1rem; } .viewer .pair figure { margin: 0; flex: 0 1 360px; }
-.viewer .pair img, .viewer .pair canvas { width: 100%; max-width: 360px; image-rendering: auto; }
+.viewer .pair { display: flex; flex-wrap: wrap; gap: 1rem; } .viewer .pair figure { margin: 0; flex: 0 1 auto; }
+.viewer .pair img, .viewer .pair canvas { max-width: 100%; }
 .controls { display: flex; flex-wrap: wrap; align-items: center; gap: .8rem; margin-top: .6rem; }
 .controls input[type=range] { width: min(480px, 90vw); accent-color: var(--accent); }
 .controls input[type=range]:focus-visible { outline: 3px solid var(--warn); outline-offset: 2px; }
