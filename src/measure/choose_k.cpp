@@ -7,25 +7,16 @@
 #include <map>
 #include <sstream>
 
+#include "core/format.hpp"
 #include "core/error.hpp"
 
 namespace pcasweep {
 
 namespace {
 
-std::string fmt(double v, int digits = 3) {
-  std::ostringstream s;
-  s.precision(digits);
-  s << v;
-  return s.str();
-}
+std::string fmt(double v, int digits = 3) { return format_real(v, digits); }
 
-std::string percent_text(double fraction) {
-  std::ostringstream s;
-  s.precision(4);
-  s << fraction * 100.0 << "%";
-  return s.str();
-}
+std::string percent_text(double fraction) { return format_percent(fraction, 4); }
 
 std::string truncated_note(const Basis& b) {
   return "only " + std::to_string(b.rank()) + " of " + std::to_string(b.dimension()) +

@@ -1,4 +1,5 @@
 #include "measure/near_zero.hpp"
+#include "core/format.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -25,12 +26,7 @@ std::string list_names(const std::vector<std::string>& names, std::size_t max_sh
   return s;
 }
 
-std::string fmt(double v, int digits = 3) {
-  std::ostringstream s;
-  s.precision(digits);
-  s << v;
-  return s.str();
-}
+std::string fmt(double v, int digits = 3) { return format_real(v, digits); }
 
 struct UnionFind {
   std::vector<int> parent;

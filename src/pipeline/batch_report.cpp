@@ -9,6 +9,7 @@
 #include <omp.h>
 #endif
 
+#include "core/format.hpp"
 #include "core/error.hpp"
 #include "io/atomic_file.hpp"
 #include "pipeline/batch.hpp"
@@ -33,13 +34,7 @@ std::vector<const FileResult*> ok_files(const BatchResult& r) {
   return out;
 }
 
-std::string fixed(double v, int decimals) {
-  if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
-  if (std::isnan(v)) return "n/a";
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
-  return buf;
-}
+std::string fixed(double v, int decimals) { return format_fixed(v, decimals, "n/a"); }
 
 std::string target_text(const CoverageTarget& t) {
   std::string s = "PSNR >= " + fixed(t.psnr_db, 1) + " dB";

@@ -6,6 +6,7 @@
 #include <map>
 #include <sstream>
 
+#include "core/format.hpp"
 #include "core/error.hpp"
 #include "io/atomic_file.hpp"
 #include "measure/image_metrics.hpp"
@@ -18,12 +19,7 @@ namespace pcasweep {
 
 namespace {
 
-std::string fmt(double v, int digits = 4) {
-  std::ostringstream s;
-  s.precision(digits);
-  s << v;
-  return s.str();
-}
+std::string fmt(double v, int digits = 4) { return format_real(v, digits); }
 
 bool meets(const KQuality& q, const QualityTarget& t) {
   return (std::isnan(t.psnr_db) || q.psnr_db >= t.psnr_db) && (std::isnan(t.ssim) || q.ssim >= t.ssim);

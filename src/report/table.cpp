@@ -12,14 +12,6 @@ void Table::add_row(std::vector<Cell> row) {
   rows.push_back(std::move(row));
 }
 
-std::string format_real(double value, int significant) {
-  if (std::isnan(value)) return "nan";
-  if (std::isinf(value)) return value > 0 ? "inf" : "-inf";
-  char buffer[64];
-  std::snprintf(buffer, sizeof buffer, "%.*g", significant, value);
-  return buffer;
-}
-
 namespace {
 
 std::string csv_cell(const Cell& cell) {

@@ -13,6 +13,8 @@
 #include <variant>
 #include <vector>
 
+#include "core/format.hpp"  // format_real: reals in CSV cells
+
 namespace pcasweep {
 
 using Cell = std::variant<std::monostate, std::int64_t, double, std::string>;
@@ -24,10 +26,6 @@ struct Table {
   // Appends a row; it must have one cell per column (checked).
   void add_row(std::vector<Cell> row);
 };
-
-// Renders one real for CSV: shortest form that round-trips to 10 significant
-// digits ("48.13080361", "inf", "nan").
-std::string format_real(double value, int significant = 10);
 
 // RFC 4180 CSV: header line, one line per row, "\n" line ends, text quoted when needed.
 std::string render_csv(const Table& table);
