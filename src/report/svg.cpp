@@ -123,164 +123,227 @@ std::string marker_svg(MarkerShape shape, double x, double y, double s, const st
   return "";
 }
 
-}  // namespace
+// The plot rectangle inside the picture: title band on top, legend panel on
+// the right (when any entry has a label), axis labels left and bottom.
+struct Frame {
+  double width = 0, height = 0;
+  double px0 = 0, px1 = 0, py0 = 0, py1 = 0;  // plot area, px
+  bool legend = false;
+};
 
-std::string render_svg_chart(const ChartSpec& c) {
-  const auto& palette = okabe_ito_palette();
-  // Layout: title band on top, legend panel on the right, axis labels left and bottom.
-  const double W = c.width, H = c.height;
+Frame frame_of(const ChartSpec& c) {
+  Frame f;
+  f.width = c.width;
+  f.height = c.height;
   const double top = c.subtitle.empty() ? 52 : 72;
   const double left = 84, bottom = c.note.empty() ? 62 : 84;
-  bool any_legend = false;
-  for (const auto& s : c.series) any_legend = any_legend || (s.in_legend && !s.name.empty());
-  for (const auto& l : c.lines) any_legend = any_legend || (l.in_legend && !l.label.empty());
-  const double legend_w = any_legend ? 250 : 20;
-  const double px0 = left, px1 = W - legend_w - 10, py0 = top, py1 = H - bottom;
+  for (const auto& s : c.series) f.legend = f.legend || (s.in_legend && !s.name.empty());
+  for (const auto& l : c.lines) f.legend = f.legend || (l.in_legend && !l.label.empty());
+  const double legend_w = f.legend ? 250 : 20;
+  f.px0 = left, f.px1 = f.width - legend_w - 10, f.py0 = top, f.py1 = f.height - bottom;
+  return f;
+}
 
-  // Data range.
+// The axes: data ranges widened to the outer ticks (whole decades on a log
+// axis), the ticks, and the maps from data to picture coordinates.
+struct Axes {
   double xlo = INFINITY, xhi = -INFINITY, ylo = INFINITY, yhi = -INFINITY;
+  double lylo = 0, lyhi = 0;          // log axis: decades shown
+  bool log_y = false;
+  bool empty = false;                 // no finite data: a placeholder range and "no data"
+  std::vector<double> xt, yt, minor;  // ticks; minor: log axis only
+  Frame f;
+
+  double X(double x) const { return f.px0 + (x - xlo) / (xhi - xlo) * (f.px1 - f.px0); }
+  double Y(double y) const {
+    const double t = log_y ? (std::log10(y) - lylo) / (lyhi - lylo) : (y - ylo) / (yhi - ylo);
+    return f.py1 - t * (f.py1 - f.py0);
+  }
+  bool inside_x(double x) const {
+    return x >= xlo - 1e-9 * std::abs(xhi - xlo) && x <= xhi + 1e-9 * std::abs(xhi - xlo);
+  }
+  bool inside_y(double y) const {
+    if (log_y) return y > 0 && std::log10(y) >= lylo - 1e-9 && std::log10(y) <= lyhi + 1e-9;
+    return y >= ylo - 1e-9 * std::abs(yhi - ylo) && y <= yhi + 1e-9 * std::abs(yhi - ylo);
+  }
+};
+
+// Extends a's ranges over every finite point and reference line.
+void cover_data(const ChartSpec& c, Axes& a) {
   for (const auto& s : c.series)
     for (std::size_t i = 0; i < s.x.size() && i < s.y.size(); ++i) {
       if (!std::isfinite(s.x[i]) || !std::isfinite(s.y[i]) || (c.log_y && s.y[i] <= 0)) continue;
-      xlo = std::min(xlo, s.x[i]);
-      xhi = std::max(xhi, s.x[i]);
-      ylo = std::min(ylo, s.y[i]);
-      yhi = std::max(yhi, s.y[i]);
+      a.xlo = std::min(a.xlo, s.x[i]);
+      a.xhi = std::max(a.xhi, s.x[i]);
+      a.ylo = std::min(a.ylo, s.y[i]);
+      a.yhi = std::max(a.yhi, s.y[i]);
     }
   for (const auto& l : c.lines) {
     if (!std::isfinite(l.value)) continue;
     if (l.vertical) {
-      xlo = std::min(xlo, l.value);
-      xhi = std::max(xhi, l.value);
+      a.xlo = std::min(a.xlo, l.value);
+      a.xhi = std::max(a.xhi, l.value);
     } else if (!c.log_y || l.value > 0) {
-      ylo = std::min(ylo, l.value);
-      yhi = std::max(yhi, l.value);
+      a.ylo = std::min(a.ylo, l.value);
+      a.yhi = std::max(a.yhi, l.value);
     }
   }
-  const bool empty = !(xlo <= xhi) || !(ylo <= yhi);
-  if (empty) xlo = 0, xhi = 1, ylo = c.log_y ? 1 : 0, yhi = c.log_y ? 10 : 1;
-  if (!std::isnan(c.x_min)) xlo = c.x_min;
-  if (!std::isnan(c.x_max)) xhi = c.x_max;
-  if (!std::isnan(c.y_min)) ylo = c.y_min;
-  if (!std::isnan(c.y_max)) yhi = c.y_max;
-  if (xhi == xlo) xlo -= 1, xhi += 1;
-  if (c.log_y) {
-    if (yhi <= ylo) ylo /= 10, yhi *= 10;
-  } else if (yhi == ylo) {
-    ylo -= 1, yhi += 1;
-  }
-  // Linear axes: extend to the outer ticks; log: to whole decades.
-  std::vector<double> yt, xt = nice_ticks(xlo, xhi, 8);
-  if (c.integer_x) {
-    xt.erase(std::remove_if(xt.begin(), xt.end(), [](double v) { return v != std::round(v); }), xt.end());
-    if (xt.empty()) xt = {std::round(xlo), std::round(xhi)};
-  }
-  if (std::isnan(c.x_min) && !xt.empty()) xlo = std::min(xlo, xt.front());
-  if (std::isnan(c.x_max) && !xt.empty()) xhi = std::max(xhi, xt.back());
-  double lylo = 0, lyhi = 0;
-  std::vector<double> minor;
-  if (c.log_y) {
-    lylo = std::floor(std::log10(ylo));
-    lyhi = std::ceil(std::log10(yhi));
-    if (lyhi == lylo) lyhi += 1;
-    const int decades = int(lyhi - lylo);
-    const int every = std::max(1, (decades + 7) / 8);
-    for (int e = int(lylo); e <= int(lyhi); e += every) yt.push_back(std::pow(10.0, e));
-    if (decades <= 3)
-      for (int e = int(lylo); e < int(lyhi); ++e)
-        for (int m : {2, 5}) yt.push_back(m * std::pow(10.0, e));
-    for (int e = int(lylo); e < int(lyhi); ++e)
-      for (int m = 2; m <= 9; ++m) minor.push_back(m * std::pow(10.0, e));
-    std::sort(yt.begin(), yt.end());
-  } else {
-    yt = nice_ticks(ylo, yhi, 6);
-    if (std::isnan(c.y_min) && !yt.empty()) ylo = std::min(ylo, yt.front());
-    if (std::isnan(c.y_max) && !yt.empty()) yhi = std::max(yhi, yt.back());
-  }
-  auto X = [&](double x) { return px0 + (x - xlo) / (xhi - xlo) * (px1 - px0); };
-  auto Y = [&](double y) {
-    const double t = c.log_y ? (std::log10(y) - lylo) / (lyhi - lylo) : (y - ylo) / (yhi - ylo);
-    return py1 - t * (py1 - py0);
-  };
-  auto inside_x = [&](double x) { return x >= xlo - 1e-9 * std::abs(xhi - xlo) && x <= xhi + 1e-9 * std::abs(xhi - xlo); };
-  auto inside_y = [&](double y) {
-    if (c.log_y) return y > 0 && std::log10(y) >= lylo - 1e-9 && std::log10(y) <= lyhi + 1e-9;
-    return y >= ylo - 1e-9 * std::abs(yhi - ylo) && y <= yhi + 1e-9 * std::abs(yhi - ylo);
-  };
+}
 
-  std::ostringstream o;
+// Applies the chart's fixed limits and widens degenerate ranges.
+void apply_limits(const ChartSpec& c, Axes& a) {
+  a.empty = !(a.xlo <= a.xhi) || !(a.ylo <= a.yhi);
+  if (a.empty) a.xlo = 0, a.xhi = 1, a.ylo = c.log_y ? 1 : 0, a.yhi = c.log_y ? 10 : 1;
+  if (!std::isnan(c.x_min)) a.xlo = c.x_min;
+  if (!std::isnan(c.x_max)) a.xhi = c.x_max;
+  if (!std::isnan(c.y_min)) a.ylo = c.y_min;
+  if (!std::isnan(c.y_max)) a.yhi = c.y_max;
+  if (a.xhi == a.xlo) a.xlo -= 1, a.xhi += 1;
+  if (c.log_y) {
+    if (a.yhi <= a.ylo) a.ylo /= 10, a.yhi *= 10;
+  } else if (a.yhi == a.ylo) {
+    a.ylo -= 1, a.yhi += 1;
+  }
+}
+
+// x ticks (whole numbers only when asked); the range grows to the outer ticks.
+void place_x_ticks(const ChartSpec& c, Axes& a) {
+  a.xt = nice_ticks(a.xlo, a.xhi, 8);
+  if (c.integer_x) {
+    a.xt.erase(std::remove_if(a.xt.begin(), a.xt.end(), [](double v) { return v != std::round(v); }), a.xt.end());
+    if (a.xt.empty()) a.xt = {std::round(a.xlo), std::round(a.xhi)};
+  }
+  if (std::isnan(c.x_min) && !a.xt.empty()) a.xlo = std::min(a.xlo, a.xt.front());
+  if (std::isnan(c.x_max) && !a.xt.empty()) a.xhi = std::max(a.xhi, a.xt.back());
+}
+
+// y ticks: whole decades (and 2, 5 when few) on a log axis, else nice steps.
+void place_y_ticks(const ChartSpec& c, Axes& a) {
+  if (c.log_y) {
+    a.lylo = std::floor(std::log10(a.ylo));
+    a.lyhi = std::ceil(std::log10(a.yhi));
+    if (a.lyhi == a.lylo) a.lyhi += 1;
+    const int decades = int(a.lyhi - a.lylo);
+    const int every = std::max(1, (decades + 7) / 8);
+    for (int e = int(a.lylo); e <= int(a.lyhi); e += every) a.yt.push_back(std::pow(10.0, e));
+    if (decades <= 3)
+      for (int e = int(a.lylo); e < int(a.lyhi); ++e)
+        for (int m : {2, 5}) a.yt.push_back(m * std::pow(10.0, e));
+    for (int e = int(a.lylo); e < int(a.lyhi); ++e)
+      for (int m = 2; m <= 9; ++m) a.minor.push_back(m * std::pow(10.0, e));
+    std::sort(a.yt.begin(), a.yt.end());
+  } else {
+    a.yt = nice_ticks(a.ylo, a.yhi, 6);
+    if (std::isnan(c.y_min) && !a.yt.empty()) a.ylo = std::min(a.ylo, a.yt.front());
+    if (std::isnan(c.y_max) && !a.yt.empty()) a.yhi = std::max(a.yhi, a.yt.back());
+  }
+}
+
+Axes axes_of(const ChartSpec& c, const Frame& f) {
+  Axes a;
+  a.f = f;
+  a.log_y = c.log_y;
+  cover_data(c, a);
+  apply_limits(c, a);
+  place_x_ticks(c, a);
+  place_y_ticks(c, a);
+  return a;
+}
+
+// The XML prologue, the white background, title and subtitle.
+void write_head(std::ostringstream& o, const ChartSpec& c, const Frame& f) {
   o << "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n"
     << "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"" << c.width << "\" height=\"" << c.height
     << "\" viewBox=\"0 0 " << c.width << " " << c.height << "\" font-family=\"DejaVu Sans, Helvetica, Arial, "
     << "sans-serif\" font-size=\"14\">\n"
     << "<rect width=\"100%\" height=\"100%\" fill=\"white\"/>\n";
-  o << "<text x=\"" << num(px0) << "\" y=\"28\" font-size=\"19\" font-weight=\"bold\">" << esc(c.title) << "</text>\n";
+  o << "<text x=\"" << num(f.px0) << "\" y=\"28\" font-size=\"19\" font-weight=\"bold\">" << esc(c.title) << "</text>\n";
   if (!c.subtitle.empty())
-    o << "<text x=\"" << num(px0) << "\" y=\"50\" font-size=\"14\" fill=\"#444\">" << esc(c.subtitle) << "</text>\n";
-  // Grid and ticks.
+    o << "<text x=\"" << num(f.px0) << "\" y=\"50\" font-size=\"14\" fill=\"#444\">" << esc(c.subtitle) << "</text>\n";
+}
+
+// Grid lines (minor decades lighter), the plot's border, tick marks and labels.
+void write_grid_and_ticks(std::ostringstream& o, const Axes& a) {
+  const Frame& f = a.f;
   o << "<g stroke=\"#e4e4e4\" stroke-width=\"1\">\n";
-  for (double v : minor)
-    if (inside_y(v)) o << "<line x1=\"" << num(px0) << "\" x2=\"" << num(px1) << "\" y1=\"" << num(Y(v)) << "\" y2=\""
-                       << num(Y(v)) << "\" stroke=\"#f2f2f2\"/>\n";
-  for (double v : yt)
-    if (inside_y(v)) o << "<line x1=\"" << num(px0) << "\" x2=\"" << num(px1) << "\" y1=\"" << num(Y(v)) << "\" y2=\""
-                       << num(Y(v)) << "\"/>\n";
-  for (double v : xt)
-    if (inside_x(v)) o << "<line y1=\"" << num(py0) << "\" y2=\"" << num(py1) << "\" x1=\"" << num(X(v)) << "\" x2=\""
-                       << num(X(v)) << "\"/>\n";
+  for (double v : a.minor)
+    if (a.inside_y(v)) o << "<line x1=\"" << num(f.px0) << "\" x2=\"" << num(f.px1) << "\" y1=\"" << num(a.Y(v))
+                         << "\" y2=\"" << num(a.Y(v)) << "\" stroke=\"#f2f2f2\"/>\n";
+  for (double v : a.yt)
+    if (a.inside_y(v)) o << "<line x1=\"" << num(f.px0) << "\" x2=\"" << num(f.px1) << "\" y1=\"" << num(a.Y(v))
+                         << "\" y2=\"" << num(a.Y(v)) << "\"/>\n";
+  for (double v : a.xt)
+    if (a.inside_x(v)) o << "<line y1=\"" << num(f.py0) << "\" y2=\"" << num(f.py1) << "\" x1=\"" << num(a.X(v))
+                         << "\" x2=\"" << num(a.X(v)) << "\"/>\n";
   o << "</g>\n";
-  o << "<rect x=\"" << num(px0) << "\" y=\"" << num(py0) << "\" width=\"" << num(px1 - px0) << "\" height=\""
-    << num(py1 - py0) << "\" fill=\"none\" stroke=\"#333\" stroke-width=\"1.2\"/>\n";
+  o << "<rect x=\"" << num(f.px0) << "\" y=\"" << num(f.py0) << "\" width=\"" << num(f.px1 - f.px0) << "\" height=\""
+    << num(f.py1 - f.py0) << "\" fill=\"none\" stroke=\"#333\" stroke-width=\"1.2\"/>\n";
   o << "<g font-size=\"13\" fill=\"#222\">\n";
-  for (double v : yt)
-    if (inside_y(v)) o << "<line x1=\"" << num(px0 - 5) << "\" x2=\"" << num(px0) << "\" y1=\"" << num(Y(v))
-                       << "\" y2=\"" << num(Y(v)) << "\" stroke=\"#333\"/><text x=\"" << num(px0 - 8) << "\" y=\""
-                       << num(Y(v) + 4.5) << "\" text-anchor=\"end\">" << esc(tick_label(v)) << "</text>\n";
-  for (double v : xt)
-    if (inside_x(v)) o << "<line y1=\"" << num(py1) << "\" y2=\"" << num(py1 + 5) << "\" x1=\"" << num(X(v))
-                       << "\" x2=\"" << num(X(v)) << "\" stroke=\"#333\"/><text x=\"" << num(X(v)) << "\" y=\""
-                       << num(py1 + 21) << "\" text-anchor=\"middle\">" << esc(tick_label(v)) << "</text>\n";
+  for (double v : a.yt)
+    if (a.inside_y(v)) o << "<line x1=\"" << num(f.px0 - 5) << "\" x2=\"" << num(f.px0) << "\" y1=\"" << num(a.Y(v))
+                         << "\" y2=\"" << num(a.Y(v)) << "\" stroke=\"#333\"/><text x=\"" << num(f.px0 - 8)
+                         << "\" y=\"" << num(a.Y(v) + 4.5) << "\" text-anchor=\"end\">" << esc(tick_label(v))
+                         << "</text>\n";
+  for (double v : a.xt)
+    if (a.inside_x(v)) o << "<line y1=\"" << num(f.py1) << "\" y2=\"" << num(f.py1 + 5) << "\" x1=\"" << num(a.X(v))
+                         << "\" x2=\"" << num(a.X(v)) << "\" stroke=\"#333\"/><text x=\"" << num(a.X(v))
+                         << "\" y=\"" << num(f.py1 + 21) << "\" text-anchor=\"middle\">" << esc(tick_label(v))
+                         << "</text>\n";
   o << "</g>\n";
-  o << "<text x=\"" << num((px0 + px1) / 2) << "\" y=\"" << num(py1 + 44) << "\" text-anchor=\"middle\" font-size=\"15\">"
-    << esc(c.x_label) << "</text>\n";
-  o << "<text transform=\"translate(22," << num((py0 + py1) / 2) << ") rotate(-90)\" text-anchor=\"middle\" "
+}
+
+// Axis labels, the footnote, "no data" on an empty chart, and the clip path of the plot area.
+void write_labels_and_clip(std::ostringstream& o, const ChartSpec& c, const Axes& a) {
+  const Frame& f = a.f;
+  o << "<text x=\"" << num((f.px0 + f.px1) / 2) << "\" y=\"" << num(f.py1 + 44)
+    << "\" text-anchor=\"middle\" font-size=\"15\">" << esc(c.x_label) << "</text>\n";
+  o << "<text transform=\"translate(22," << num((f.py0 + f.py1) / 2) << ") rotate(-90)\" text-anchor=\"middle\" "
     << "font-size=\"15\">" << esc(c.y_label) << "</text>\n";
   if (!c.note.empty())
-    o << "<text x=\"" << num(px0) << "\" y=\"" << num(H - 12) << "\" font-size=\"12\" fill=\"#555\">" << esc(c.note)
-      << "</text>\n";
-  if (empty)
-    o << "<text x=\"" << num((px0 + px1) / 2) << "\" y=\"" << num((py0 + py1) / 2) << "\" text-anchor=\"middle\" "
-      << "fill=\"#777\">no data</text>\n";
+    o << "<text x=\"" << num(f.px0) << "\" y=\"" << num(f.height - 12) << "\" font-size=\"12\" fill=\"#555\">"
+      << esc(c.note) << "</text>\n";
+  if (a.empty)
+    o << "<text x=\"" << num((f.px0 + f.px1) / 2) << "\" y=\"" << num((f.py0 + f.py1) / 2)
+      << "\" text-anchor=\"middle\" " << "fill=\"#777\">no data</text>\n";
+  o << "<defs><clipPath id=\"plot\"><rect x=\"" << num(f.px0) << "\" y=\"" << num(f.py0) << "\" width=\""
+    << num(f.px1 - f.px0) << "\" height=\"" << num(f.py1 - f.py0) << "\"/></clipPath></defs>\n";
+}
 
-  // Clip data to the plot area.
-  o << "<defs><clipPath id=\"plot\"><rect x=\"" << num(px0) << "\" y=\"" << num(py0) << "\" width=\""
-    << num(px1 - px0) << "\" height=\"" << num(py1 - py0) << "\"/></clipPath></defs>\n";
-  // Reference lines with labels (labels stacked so they do not collide).
+// Reference lines with their labels beside them (vertical lines' labels
+// stacked in six rows so they do not collide).
+void write_reference_lines(std::ostringstream& o, const ChartSpec& c, const Axes& a) {
+  const Frame& f = a.f;
   int vlabel = 0;
   for (const auto& l : c.lines) {
     if (!std::isfinite(l.value)) continue;
     if (l.vertical) {
-      if (!inside_x(l.value)) continue;
-      o << "<line x1=\"" << num(X(l.value)) << "\" x2=\"" << num(X(l.value)) << "\" y1=\"" << num(py0) << "\" y2=\""
-        << num(py1) << "\" stroke=\"" << l.colour << "\" stroke-width=\"1.3\" stroke-dasharray=\"" << l.dash
-        << "\"/>\n";
+      if (!a.inside_x(l.value)) continue;
+      o << "<line x1=\"" << num(a.X(l.value)) << "\" x2=\"" << num(a.X(l.value)) << "\" y1=\"" << num(f.py0)
+        << "\" y2=\"" << num(f.py1) << "\" stroke=\"" << l.colour << "\" stroke-width=\"1.3\" stroke-dasharray=\""
+        << l.dash << "\"/>\n";
       if (!l.label.empty() && !l.in_legend) {
-        const double lx = X(l.value) + 4, ly = py0 + 16 + 16 * (vlabel++ % 6);
-        const bool flip = lx > px1 - 120;
-        o << "<text x=\"" << num(flip ? X(l.value) - 4 : lx) << "\" y=\"" << num(ly) << "\" font-size=\"12\" fill=\""
-          << l.colour << "\"" << (flip ? " text-anchor=\"end\"" : "") << ">" << esc(l.label) << "</text>\n";
+        const double lx = a.X(l.value) + 4, ly = f.py0 + 16 + 16 * (vlabel++ % 6);
+        const bool flip = lx > f.px1 - 120;
+        o << "<text x=\"" << num(flip ? a.X(l.value) - 4 : lx) << "\" y=\"" << num(ly)
+          << "\" font-size=\"12\" fill=\"" << l.colour << "\"" << (flip ? " text-anchor=\"end\"" : "") << ">"
+          << esc(l.label) << "</text>\n";
       }
     } else {
-      if (!inside_y(l.value)) continue;
-      o << "<line x1=\"" << num(px0) << "\" x2=\"" << num(px1) << "\" y1=\"" << num(Y(l.value)) << "\" y2=\""
-        << num(Y(l.value)) << "\" stroke=\"" << l.colour << "\" stroke-width=\"1.3\" stroke-dasharray=\"" << l.dash
+      if (!a.inside_y(l.value)) continue;
+      o << "<line x1=\"" << num(f.px0) << "\" x2=\"" << num(f.px1) << "\" y1=\"" << num(a.Y(l.value)) << "\" y2=\""
+        << num(a.Y(l.value)) << "\" stroke=\"" << l.colour << "\" stroke-width=\"1.3\" stroke-dasharray=\"" << l.dash
         << "\"/>\n";
       if (!l.label.empty() && !l.in_legend)
-        o << "<text x=\"" << num(px1 - 6) << "\" y=\"" << num(Y(l.value) - 5) << "\" font-size=\"12\" text-anchor=\"end\" "
-          << "fill=\"" << l.colour << "\">" << esc(l.label) << "</text>\n";
+        o << "<text x=\"" << num(f.px1 - 6) << "\" y=\"" << num(a.Y(l.value) - 5)
+          << "\" font-size=\"12\" text-anchor=\"end\" " << "fill=\"" << l.colour << "\">" << esc(l.label)
+          << "</text>\n";
     }
   }
-  // Series.
+}
+
+// Each series' colour: its own, its palette index, or the next palette colour in order.
+std::vector<std::string> series_colours(const ChartSpec& c) {
+  const auto& palette = okabe_ito_palette();
   std::vector<std::string> colours;
   int next = 0;
   for (const auto& s : c.series) {
@@ -288,6 +351,11 @@ std::string render_svg_chart(const ChartSpec& c) {
     if (col.empty()) col = palette[std::size_t((s.style.palette_index >= 0 ? s.style.palette_index : next++) % 8)];
     colours.push_back(col);
   }
+  return colours;
+}
+
+// The series inside the clip path: a path broken at skipped points, then markers.
+void write_series(std::ostringstream& o, const ChartSpec& c, const Axes& a, const std::vector<std::string>& colours) {
   o << "<g clip-path=\"url(#plot)\">\n";
   for (std::size_t si = 0; si < c.series.size(); ++si) {
     const auto& s = c.series[si];
@@ -302,7 +370,7 @@ std::string render_svg_chart(const ChartSpec& c) {
           pen = false;
           continue;
         }
-        d += (pen ? "L" : "M") + num(X(s.x[i])) + "," + num(Y(s.y[i]));
+        d += (pen ? "L" : "M") + num(a.X(s.x[i])) + "," + num(a.Y(s.y[i]));
         pen = true;
       }
       if (!d.empty())
@@ -312,44 +380,61 @@ std::string render_svg_chart(const ChartSpec& c) {
     }
     if (s.style.marker != MarkerShape::none)
       for (std::size_t i = 0; i < n; ++i)
-        if (ok(i)) o << marker_svg(s.style.marker, X(s.x[i]), Y(s.y[i]), s.style.marker_size, col, s.style.hollow, 1.8);
+        if (ok(i)) o << marker_svg(s.style.marker, a.X(s.x[i]), a.Y(s.y[i]), s.style.marker_size, col, s.style.hollow, 1.8);
     o << "\n";
   }
   o << "</g>\n";
-  // Legend panel.
-  if (any_legend) {
-    const double lx = px1 + 22;
-    double ly = py0 + 6;
-    o << "<g font-size=\"13\">\n";
-    // An entry's text, word-wrapped to the panel's width (about 27 characters
-    // at 13 px), one line per 17 px; then the gap to the next entry.
-    const auto legend_text = [&](const std::string& text, double x, double cy) {
-      const std::vector<std::string> rows = wrap_words(text, 27);
-      for (std::size_t r = 0; r < rows.size(); ++r)
-        o << "<text x=\"" << num(x) << "\" y=\"" << num(cy + 4.5 + 17.0 * double(r)) << "\">" << esc(rows[r])
-          << "</text>\n";
-      ly += 24 + 17.0 * double(rows.size() - 1);
-    };
-    for (std::size_t si = 0; si < c.series.size(); ++si) {
-      const auto& s = c.series[si];
-      if (!s.in_legend || s.name.empty()) continue;
-      const double cy = ly + 10;
-      if (s.style.line)
-        o << "<line x1=\"" << num(lx) << "\" x2=\"" << num(lx + 28) << "\" y1=\"" << num(cy) << "\" y2=\"" << num(cy)
-          << "\" stroke=\"" << colours[si] << "\" stroke-width=\"" << num(s.style.line_width) << "\""
-          << (s.style.dash.empty() ? "" : " stroke-dasharray=\"" + s.style.dash + "\"") << "/>";
-      o << marker_svg(s.style.marker, lx + 14, cy, std::min(s.style.marker_size, 6.0), colours[si], s.style.hollow, 1.8);
-      legend_text(s.name, lx + 36, cy);
-    }
-    for (const auto& l : c.lines) {
-      if (!l.in_legend || l.label.empty()) continue;
-      const double cy = ly + 10;
+}
+
+// The legend panel right of the plot: series (line and marker swatch), then
+// reference lines that asked to be listed; text word-wrapped to the panel.
+void write_legend(std::ostringstream& o, const ChartSpec& c, const Frame& f, const std::vector<std::string>& colours) {
+  const double lx = f.px1 + 22;
+  double ly = f.py0 + 6;
+  o << "<g font-size=\"13\">\n";
+  // An entry's text, word-wrapped to the panel's width (about 27 characters
+  // at 13 px), one line per 17 px; then the gap to the next entry.
+  const auto legend_text = [&](const std::string& text, double x, double cy) {
+    const std::vector<std::string> rows = wrap_words(text, 27);
+    for (std::size_t r = 0; r < rows.size(); ++r)
+      o << "<text x=\"" << num(x) << "\" y=\"" << num(cy + 4.5 + 17.0 * double(r)) << "\">" << esc(rows[r])
+        << "</text>\n";
+    ly += 24 + 17.0 * double(rows.size() - 1);
+  };
+  for (std::size_t si = 0; si < c.series.size(); ++si) {
+    const auto& s = c.series[si];
+    if (!s.in_legend || s.name.empty()) continue;
+    const double cy = ly + 10;
+    if (s.style.line)
       o << "<line x1=\"" << num(lx) << "\" x2=\"" << num(lx + 28) << "\" y1=\"" << num(cy) << "\" y2=\"" << num(cy)
-        << "\" stroke=\"" << l.colour << "\" stroke-width=\"1.6\" stroke-dasharray=\"" << l.dash << "\"/>";
-      legend_text(l.label, lx + 36, cy);
-    }
-    o << "</g>\n";
+        << "\" stroke=\"" << colours[si] << "\" stroke-width=\"" << num(s.style.line_width) << "\""
+        << (s.style.dash.empty() ? "" : " stroke-dasharray=\"" + s.style.dash + "\"") << "/>";
+    o << marker_svg(s.style.marker, lx + 14, cy, std::min(s.style.marker_size, 6.0), colours[si], s.style.hollow, 1.8);
+    legend_text(s.name, lx + 36, cy);
   }
+  for (const auto& l : c.lines) {
+    if (!l.in_legend || l.label.empty()) continue;
+    const double cy = ly + 10;
+    o << "<line x1=\"" << num(lx) << "\" x2=\"" << num(lx + 28) << "\" y1=\"" << num(cy) << "\" y2=\"" << num(cy)
+      << "\" stroke=\"" << l.colour << "\" stroke-width=\"1.6\" stroke-dasharray=\"" << l.dash << "\"/>";
+    legend_text(l.label, lx + 36, cy);
+  }
+  o << "</g>\n";
+}
+
+}  // namespace
+
+std::string render_svg_chart(const ChartSpec& c) {
+  const Frame frame = frame_of(c);
+  const Axes axes = axes_of(c, frame);
+  const std::vector<std::string> colours = series_colours(c);
+  std::ostringstream o;
+  write_head(o, c, frame);
+  write_grid_and_ticks(o, axes);
+  write_labels_and_clip(o, c, axes);
+  write_reference_lines(o, c, axes);
+  write_series(o, c, axes, colours);
+  if (frame.legend) write_legend(o, c, frame, colours);
   o << "</svg>\n";
   return o.str();
 }
