@@ -214,14 +214,33 @@ std::string with_components_asked(std::string_view file, std::uint32_t k) {
   return out;
 }
 
-OpenedContainer open_container(std::string_view bytes, const std::string& name) {
+namespace {
+
+// The fixed header as read, before the body: the image fields in `c`, the
+// raw codes and the part sizes beside them.
+struct Header {
+  std::uint16_t version = 0;
+  CodedImage c;
+  std::uint32_t m = 0;  // coded components
+  std::uint64_t body_size = 0, frame_size = 0, columns_size = 0, coefficients_size = 0;
+  std::uint8_t kind = 0, coder = 0;
+
+  std::uint64_t d() const { return c.dimension; }
+  std::uint64_t count() const { return std::uint64_t(c.observations) * m; }  // N·m coefficients
+  bool adaptive() const { return c.coder == EntropyCoder::adaptive; }
+  bool has_mean() const { return c.basis_kind != BasisKind::external; }
+  bool has_columns() const { return c.basis_kind == BasisKind::embedded; }
+};
+
+// Magic, length, version and the CRC-32 over everything before the trailer.
+// Returns the version. Throws Error(data).
+std::uint16_t check_envelope(std::string_view bytes, const std::string& name) {
   if (bytes.size() < 4 || std::memcmp(bytes.data(), kCodedImageMagic, 4) != 0) {
     throw data_error(name + ": not a pcasweep coded image (magic is not \"PSCI\")");
   }
   if (bytes.size() < kCodedImageHeaderSize + 4) throw data_error(name + ": file is truncated (" + std::to_string(bytes.size()) + " bytes)");
-  Reader h(bytes, name, "header");
-  h.get<std::uint32_t>();
-  const auto version = h.get<std::uint16_t>();
+  std::uint16_t version = 0;
+  std::memcpy(&version, bytes.data() + 4, 2);
   if (version != kCodedImageVersion && version != 2) {
     throw data_error(name + ": format version " + std::to_string(version) + " is not supported (this build reads versions 2 and " +
                      std::to_string(kCodedImageVersion) + ")");
@@ -231,7 +250,17 @@ OpenedContainer open_container(std::string_view bytes, const std::string& name) 
   if (crc32_of(bytes.substr(0, bytes.size() - 4)) != stored_crc) {
     throw data_error(name + ": checksum mismatch: the file is truncated or corrupt");
   }
-  CodedImage c;
+  return version;
+}
+
+// Reads the fixed header fields (docs/format.md); checks the layout and colour codes.
+Header read_header(std::string_view bytes, std::uint16_t version, const std::string& name) {
+  Header hd;
+  hd.version = version;
+  CodedImage& c = hd.c;
+  Reader h(bytes, name, "header");
+  h.get<std::uint32_t>();
+  h.get<std::uint16_t>();
   const auto layout_code = h.get<std::uint8_t>();
   const auto colour = h.get<std::uint8_t>();
   if (layout_code != 1) throw data_error(name + ": unknown layout code " + std::to_string(layout_code));
@@ -245,20 +274,25 @@ OpenedContainer open_container(std::string_view bytes, const std::string& name) 
   c.patch.patch_width = h.get<std::uint16_t>();
   c.patch.stride_y = h.get<std::uint16_t>();
   c.patch.stride_x = h.get<std::uint16_t>();
-  const auto kind = h.get<std::uint8_t>();
-  const auto coder = h.get<std::uint8_t>();
+  hd.kind = h.get<std::uint8_t>();
+  hd.coder = h.get<std::uint8_t>();
   c.dimension = h.get<std::uint32_t>();
   c.k = h.get<std::uint32_t>();
-  const std::uint32_t m = h.get<std::uint32_t>();
+  hd.m = h.get<std::uint32_t>();
   c.observations = h.get<std::uint32_t>();
   c.water_level = h.get<double>();
   for (auto& b : c.basis_sha256) b = h.get<std::uint8_t>();
-  const auto body_size = h.get<std::uint64_t>();
-  const auto frame_size = h.get<std::uint64_t>();
-  const auto columns_size = h.get<std::uint64_t>();
-  const auto coefficients_size = h.get<std::uint64_t>();
+  hd.body_size = h.get<std::uint64_t>();
+  hd.frame_size = h.get<std::uint64_t>();
+  hd.columns_size = h.get<std::uint64_t>();
+  hd.coefficients_size = h.get<std::uint64_t>();
+  return hd;
+}
 
-  // Geometry, against caps, before any allocation.
+// Image and patch geometry, basis kind, coder, d, N and m against caps and
+// against one another, before any allocation. Sets c.basis_kind and c.coder.
+void check_geometry(Header& hd, const std::string& name) {
+  CodedImage& c = hd.c;
   if (c.width == 0 || c.height == 0 || c.channels < 1 || c.channels > 4) {
     throw data_error(name + ": header declares an impossible image (" + std::to_string(c.width) + "x" +
                      std::to_string(c.height) + ", " + std::to_string(c.channels) + " channels)");
@@ -275,11 +309,10 @@ OpenedContainer open_container(std::string_view bytes, const std::string& name) 
       std::uint32_t(p.patch_width) > c.width) {
     throw data_error(name + ": header declares an impossible patch geometry");
   }
-  if (kind > 2) throw data_error(name + ": unknown basis kind " + std::to_string(kind));
-  c.basis_kind = BasisKind(kind);
-  if (coder < 1 || coder > 3) throw data_error(name + ": unknown entropy coder " + std::to_string(coder));
-  c.coder = EntropyCoder(coder);
-  const bool adaptive = c.coder == EntropyCoder::adaptive;
+  if (hd.kind > 2) throw data_error(name + ": unknown basis kind " + std::to_string(hd.kind));
+  c.basis_kind = BasisKind(hd.kind);
+  if (hd.coder < 1 || hd.coder > 3) throw data_error(name + ": unknown entropy coder " + std::to_string(hd.coder));
+  c.coder = EntropyCoder(hd.coder);
   const std::uint64_t d = std::uint64_t(p.patch_height) * p.patch_width * per_observation_channels(c);
   if (c.dimension != d || d > kMaxDimension) {
     throw data_error(name + ": header declares d = " + std::to_string(c.dimension) + " but the patch geometry gives " +
@@ -294,57 +327,67 @@ OpenedContainer open_container(std::string_view bytes, const std::string& name) 
     throw data_error(name + ": header declares N = " + std::to_string(c.observations) + " observations, the geometry gives " +
                      std::to_string(layout.observation_count()));
   }
-  if (m > d || c.k > d || m > c.k) {
-    throw data_error(name + ": header declares " + std::to_string(m) + " coded of k = " + std::to_string(c.k) +
+  if (hd.m > d || c.k > d || hd.m > c.k) {
+    throw data_error(name + ": header declares " + std::to_string(hd.m) + " coded of k = " + std::to_string(c.k) +
                      " components with d = " + std::to_string(d));
   }
-  const std::uint64_t count = std::uint64_t(c.observations) * m;
-  const bool has_mean = c.basis_kind != BasisKind::external;
-  const bool has_columns = c.basis_kind == BasisKind::embedded;
-  const std::uint64_t side_part = m * 8 + (has_mean ? d * 2 : 0) + (has_columns ? m * 4 : 0);
-  const std::uint64_t column_part = has_columns ? d * m * 2 : 0;
-  if (adaptive) {
-    if (body_size != side_part) {
-      throw data_error(name + ": header declares a body of " + std::to_string(body_size) + " bytes, the side information of " +
+}
+
+// The body and the three parts' sizes against what m components and N·m
+// coefficients can take, and against the file's length. Throws Error(data).
+void check_part_sizes(const Header& hd, std::size_t file_size, const std::string& name) {
+  const std::uint64_t d = hd.d(), m = hd.m, count = hd.count();
+  const std::uint64_t side_part = m * 8 + (hd.has_mean() ? d * 2 : 0) + (hd.has_columns() ? m * 4 : 0);
+  const std::uint64_t column_part = hd.has_columns() ? d * m * 2 : 0;
+  if (hd.adaptive()) {
+    if (hd.body_size != side_part) {
+      throw data_error(name + ": header declares a body of " + std::to_string(hd.body_size) + " bytes, the side information of " +
                        std::to_string(m) + " components takes " + std::to_string(side_part));
     }
   } else {
-    const bool varint = c.coder == EntropyCoder::varint_zstd;
+    const bool varint = hd.c.coder == EntropyCoder::varint_zstd;
     const std::uint64_t packed_max = varint ? count * 5 : 1 + count * 4;
     const std::uint64_t packed_min = varint ? count : 1 + count;
-    if (body_size < side_part + column_part + packed_min || body_size > side_part + column_part + packed_max) {
-      throw data_error(name + ": header declares a body of " + std::to_string(body_size) + " bytes, impossible for " +
+    if (hd.body_size < side_part + column_part + packed_min || hd.body_size > side_part + column_part + packed_max) {
+      throw data_error(name + ": header declares a body of " + std::to_string(hd.body_size) + " bytes, impossible for " +
                        std::to_string(count) + " coefficients");
     }
   }
-  const std::uint64_t held = bytes.size() - kCodedImageHeaderSize - 4;
-  if (frame_size > held || columns_size > held || coefficients_size > held ||
-      frame_size + columns_size + coefficients_size != held) {
-    throw data_error(name + ": header declares parts of " + std::to_string(frame_size) + " + " + std::to_string(columns_size) +
-                     " + " + std::to_string(coefficients_size) + " bytes, the file holds " + std::to_string(held));
+  const std::uint64_t held = file_size - kCodedImageHeaderSize - 4;
+  if (hd.frame_size > held || hd.columns_size > held || hd.coefficients_size > held ||
+      hd.frame_size + hd.columns_size + hd.coefficients_size != held) {
+    throw data_error(name + ": header declares parts of " + std::to_string(hd.frame_size) + " + " + std::to_string(hd.columns_size) +
+                     " + " + std::to_string(hd.coefficients_size) + " bytes, the file holds " + std::to_string(held));
   }
-  if (adaptive) {
+  if (hd.adaptive()) {
     // A range-coded stream of R bytes holds at most ~5678·R decisions (adaptive_coder.hpp):
     // refuse counts it cannot hold before allocating for them.
-    if (coefficients_size < 5 || count > kMaxBinsPerByte * coefficients_size) {
-      throw data_error(name + ": range-coded coefficients of " + std::to_string(coefficients_size) +
+    if (hd.coefficients_size < 5 || count > kMaxBinsPerByte * hd.coefficients_size) {
+      throw data_error(name + ": range-coded coefficients of " + std::to_string(hd.coefficients_size) +
                        " bytes cannot hold " + std::to_string(count) + " values");
     }
-    if (has_columns ? (columns_size < 5 || d * m > kMaxBinsPerByte * columns_size) : columns_size != 0) {
-      throw data_error(name + ": range-coded basis columns of " + std::to_string(columns_size) +
-                       " bytes do not fit " + std::to_string(has_columns ? d * m : 0) + " entries");
+    if (hd.has_columns() ? (hd.columns_size < 5 || d * m > kMaxBinsPerByte * hd.columns_size) : hd.columns_size != 0) {
+      throw data_error(name + ": range-coded basis columns of " + std::to_string(hd.columns_size) +
+                       " bytes do not fit " + std::to_string(hd.has_columns() ? d * m : 0) + " entries");
     }
-  } else if (columns_size != 0 || coefficients_size != 0) {
+  } else if (hd.columns_size != 0 || hd.coefficients_size != 0) {
     throw data_error(name + ": zstd-coded file declares range-coded parts");
   }
-  const std::string body = zstd_decompress(bytes.substr(kCodedImageHeaderSize, frame_size), std::size_t(body_size), name);
+}
 
+// Reads the side information (component list, steps, mean, column scales;
+// zstd coders: the columns too) from the decompressed body into hd.c and
+// checks it. Returns what follows it in the body (zstd coders: the packed
+// coefficients).
+std::string_view read_side_information(std::string_view body, Header& hd, const std::string& name) {
+  CodedImage& c = hd.c;
+  const std::uint64_t d = hd.d();
   Reader b(body, name, "body");
-  b.get_array(c.component_index, m);
-  b.get_array(c.steps, m);
-  if (has_mean) b.get_array(c.mean_fixed, std::size_t(d));
-  if (has_columns) b.get_array(c.column_scale, m);
-  if (has_columns && !adaptive) b.get_array(c.column_fixed, std::size_t(d * m));
+  b.get_array(c.component_index, hd.m);
+  b.get_array(c.steps, hd.m);
+  if (hd.has_mean()) b.get_array(c.mean_fixed, std::size_t(d));
+  if (hd.has_columns()) b.get_array(c.column_scale, hd.m);
+  if (hd.has_columns() && !hd.adaptive()) b.get_array(c.column_fixed, std::size_t(d * hd.m));
   std::vector<bool> seen(std::size_t(d), false);
   for (std::uint32_t i : c.component_index) {
     if (i >= d || seen[i]) throw data_error(name + ": component list is invalid (index " + std::to_string(i) + ")");
@@ -354,28 +397,49 @@ OpenedContainer open_container(std::string_view bytes, const std::string& name) 
     if (!(s > 0.0f) || !std::isfinite(s)) throw data_error(name + ": a quantiser step is not a positive number");
   for (float s : c.column_scale)
     if (!(s > 0.0f) || !std::isfinite(s)) throw data_error(name + ": a basis column scale is not a positive number");
+  return b.rest();
+}
+
+// Decodes the basis columns (range coder) and, where the file's order does
+// not allow reading band by band (zstd coders, version 2 channels colour),
+// every coefficient at once; otherwise leaves the coefficient stream for the caller.
+OpenedContainer decode_parts(std::string_view bytes, std::string_view packed, Header hd, const std::string& name) {
+  CodedImage& c = hd.c;
   OpenedContainer opened;
-  opened.version = version;
-  const std::string_view streams = bytes.substr(kCodedImageHeaderSize + frame_size);
-  if (adaptive) {
-    if (has_columns) c.column_fixed = decode_columns(streams.substr(0, columns_size), std::size_t(d), m, name);
-    opened.coefficient_stream = streams.substr(columns_size, coefficients_size);
+  opened.version = hd.version;
+  const std::string_view streams = bytes.substr(kCodedImageHeaderSize + hd.frame_size);
+  if (hd.adaptive()) {
+    if (hd.has_columns()) c.column_fixed = decode_columns(streams.substr(0, hd.columns_size), std::size_t(hd.d()), hd.m, name);
+    opened.coefficient_stream = streams.substr(hd.columns_size, hd.coefficients_size);
   }
-  const bool whole = !adaptive || (version == 2 && c.patch.colour == ColourMode::channels);
+  const bool whole = !hd.adaptive() || (hd.version == 2 && c.patch.colour == ColourMode::channels);
   if (whole) {
+    const std::uint64_t count = hd.count();
     if (count > kMaxDecodedValues) {
       throw data_error(name + ": decoding would hold " + std::to_string(count) + " coefficients at once, above the cap of " +
                        std::to_string(kMaxDecodedValues));
     }
-    c.coefficients = adaptive ? decode_coefficients(opened.coefficient_stream, m, coefficient_grid(c),
-                                                    CodingOrder::patch_major, name)
-                              : unpack_integers(b.rest(), std::size_t(count),
-                                                c.coder == EntropyCoder::varint_zstd ? Packing::varint : Packing::planes, name);
+    c.coefficients = hd.adaptive() ? decode_coefficients(opened.coefficient_stream, hd.m, coefficient_grid(c),
+                                                         CodingOrder::patch_major, name)
+                                   : unpack_integers(packed, std::size_t(count),
+                                                     c.coder == EntropyCoder::varint_zstd ? Packing::varint : Packing::planes, name);
     opened.coefficients_decoded = true;
     opened.coefficient_stream = {};
   }
   opened.image = std::move(c);
   return opened;
+}
+
+}  // namespace
+
+OpenedContainer open_container(std::string_view bytes, const std::string& name) {
+  const std::uint16_t version = check_envelope(bytes, name);
+  Header hd = read_header(bytes, version, name);
+  check_geometry(hd, name);
+  check_part_sizes(hd, bytes.size(), name);
+  const std::string body = zstd_decompress(bytes.substr(kCodedImageHeaderSize, hd.frame_size), std::size_t(hd.body_size), name);
+  const std::string_view packed = read_side_information(body, hd, name);
+  return decode_parts(bytes, packed, std::move(hd), name);
 }
 
 CodedImage read_container(std::string_view bytes, const std::string& name) {
