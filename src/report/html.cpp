@@ -144,7 +144,8 @@ footer .caution { border-left: 4px solid var(--warn); padding-left: .7rem; }
 }
 )CSS";
 
-// The live viewer and the #selftest hook. Reconstruction mirrors
+// The live viewer and the #selftest hook (a JavaScript constant, one block
+// on purpose: the page runs it as written). Reconstruction mirrors
 // reconstruct/ + observe/patches.hpp fold + observe/raster.hpp quantize.
 const char* kScript = R"JS(
 (function () {
@@ -295,10 +296,8 @@ const char* kScript = R"JS(
 })();
 )JS";
 
-}  // namespace
-
-std::string render_report_html(const HtmlReport& r) {
-  std::ostringstream o;
+// The document head (with the page's content-security policy), the title and the headline.
+void write_page_head(std::ostringstream& o, const HtmlReport& r) {
   o << "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
     << "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; img-src data:; "
        "style-src 'unsafe-inline'; script-src 'unsafe-inline'\">\n"
@@ -313,107 +312,128 @@ std::string render_report_html(const HtmlReport& r) {
   o << "</header>\n<main>\n<section id=\"settings\"><h2>Settings and inputs</h2><dl class=\"settings\">";
   for (const auto& [label, value] : r.settings) o << "<dt>" << html_escape(label) << "</dt><dd>" << html_escape(value) << "</dd>";
   o << "</dl></section>\n";
-  const auto section_html = [&](std::size_t s) {
-    const HtmlSection& sec = r.sections[s];
-    o << "<section><h2>" << html_escape(sec.title) << "</h2>\n";
-    if (!sec.intro.empty()) o << "<p>" << html_escape(sec.intro) << "</p>\n";
-    if (!sec.charts.empty()) {
-      o << "<div class=\"charts\">";
-      for (const auto& c : sec.charts) o << "<figure>" << c.svg << "<figcaption>" << html_escape(c.caption) << "</figcaption></figure>\n";
-      o << "</div>\n";
-    }
-    for (std::size_t t = 0; t < sec.tables.size(); ++t)
-      table_html(o, sec.tables[t], t < sec.table_captions.size() ? sec.table_captions[t] : "");
-    o << "</section>\n";
-  };
-  for (std::size_t s = 0; s < std::min(r.viewers_after, r.sections.size()); ++s) section_html(s);
+}
+
+// One section: title, intro, charts, then its tables with their captions.
+void write_section(std::ostringstream& o, const HtmlSection& sec) {
+  o << "<section><h2>" << html_escape(sec.title) << "</h2>\n";
+  if (!sec.intro.empty()) o << "<p>" << html_escape(sec.intro) << "</p>\n";
+  if (!sec.charts.empty()) {
+    o << "<div class=\"charts\">";
+    for (const auto& c : sec.charts) o << "<figure>" << c.svg << "<figcaption>" << html_escape(c.caption) << "</figcaption></figure>\n";
+    o << "</div>\n";
+  }
+  for (std::size_t t = 0; t < sec.tables.size(); ++t)
+    table_html(o, sec.tables[t], t < sec.table_captions.size() ? sec.table_captions[t] : "");
+  o << "</section>\n";
+}
+
+// One viewer's markup: the original beside a canvas (live) or a stepped
+// image, and the slider with its k and PSNR outputs.
+void write_viewer_markup(std::ostringstream& o, const HtmlViewer& v, std::size_t i) {
+  const std::string id = std::to_string(i);
+  const std::string where = v.whole_image ? std::string(" (whole image, 1:1)")
+                                          : " (1:1 crop of " + std::to_string(v.width) + "×" + std::to_string(v.height) +
+                                                " pixels at x = " + std::to_string(v.image_x) + ", y = " +
+                                                std::to_string(v.image_y) + ")";
+  o << "<div class=\"viewer\" id=\"viewer-" << id << "\">\n<h3>" << html_escape(v.file + where) << "</h3>\n<div class=\"pair\">"
+    << "<figure>" << img_tag(v.original) << "<figcaption>" << html_escape(v.original.caption) << "</figcaption></figure>";
+  if (v.live) {
+    o << "<figure><canvas width=\"" << v.width << "\" height=\"" << v.height
+      << "\" role=\"img\" aria-label=\"Reconstruction of " << html_escape(v.file)
+      << "\"></canvas><figcaption>Reconstructed in your browser from the embedded basis and coefficients, "
+         "rounded and clipped like the written files</figcaption></figure>";
+  } else {
+    o << "<figure><img class=\"stepped\" alt=\"Reconstruction of " << html_escape(v.file)
+      << "\" src=\"data:image/png;base64,\"><figcaption>Precomputed reconstructions at the swept k (the live "
+         "viewer rebuilds bases of d up to 192 only)</figcaption></figure>";
+  }
+  o << "</div>\n<div class=\"controls\"><label for=\"slider-" << id << "\">Components kept (k)</label>";
+  if (v.live) {
+    o << "<input type=\"range\" id=\"slider-" << id << "\" min=\"1\" max=\"" << v.rank << "\" step=\"1\" value=\""
+      << v.initial_k << "\">";
+  } else {
+    std::size_t at = 0;
+    for (std::size_t j = 0; j < v.ks.size(); ++j)
+      if (v.ks[j] <= v.initial_k) at = j;
+    o << "<input type=\"range\" id=\"slider-" << id << "\" min=\"0\" max=\"" << (v.ks.empty() ? 0 : v.ks.size() - 1)
+      << "\" step=\"1\" value=\"" << at << "\">";
+  }
+  o << "<output for=\"slider-" << id << "\" aria-live=\"polite\">k = <span class=\"k-value\">" << v.initial_k
+    << "</span> · PSNR <span class=\"psnr-value\"></span> dB</output></div>\n</div>\n";
+}
+
+// One viewer's data for the script: geometry and base64 arrays (live), or
+// the precomputed PNGs and PSNRs (stepped), with the self-test's positions.
+nlohmann::json viewer_json(const HtmlViewer& v) {
+  nlohmann::json j = {{"file", v.file}, {"live", v.live}};
+  if (v.live) {
+    j.update({{"width", v.width}, {"height", v.height}, {"channels", v.channels}, {"bit_depth", v.bit_depth},
+              {"patch_height", v.patch_height}, {"patch_width", v.patch_width}, {"stride_y", v.stride_y},
+              {"stride_x", v.stride_x}, {"padded_width", v.padded_width}, {"padded_height", v.padded_height},
+              {"patches_across", v.patches_across}, {"patches_down", v.patches_down},
+              {"crop_x", v.crop_x}, {"crop_y", v.crop_y}, {"image_x", v.image_x}, {"image_y", v.image_y},
+              {"whole_image", v.whole_image},
+              {"joint_colour", v.joint_colour}, {"dimension", v.dimension}, {"rank", v.rank},
+              {"observations", v.observations}, {"mean_f32", base64_encode(v.mean_f32)},
+              {"components_f32", base64_encode(v.components_f32)},
+              {"coefficients_f32", base64_encode(v.coefficients_f32)},
+              {"original_samples", base64_encode(v.original_samples)}});
+    // The self-test visits the swept ks (so the PSNR can be checked against batch.csv).
+    j["test_positions"] = v.ks;
+  } else {
+    std::vector<std::string> pngs;
+    for (const auto& p : v.pngs) pngs.push_back(base64_encode(p));
+    nlohmann::json ps = nlohmann::json::array();
+    for (double p : v.psnr_db) ps.push_back(json_real(p));
+    std::vector<int> positions_all;
+    for (std::size_t q = 0; q < v.ks.size(); ++q) positions_all.push_back(int(q));
+    j.update({{"ks", v.ks}, {"pngs", pngs}, {"psnr_db", ps}, {"test_positions", positions_all}});
+  }
+  return j;
+}
+
+// The viewers' section (when there are viewers); returns the script's data, one object per viewer.
+nlohmann::json write_viewers(std::ostringstream& o, const HtmlReport& r) {
   nlohmann::json viewer_data = nlohmann::json::array();
-  if (!r.viewers.empty()) {
-    o << "<section id=\"viewers\"><h2>Reconstruction at any k</h2>\n<p class=\"note\">" << html_escape(r.viewer_note)
-      << "</p>\n";
-    for (std::size_t i = 0; i < r.viewers.size(); ++i) {
-      const HtmlViewer& v = r.viewers[i];
-      const std::string id = std::to_string(i);
-      const std::string where = v.whole_image ? std::string(" (whole image, 1:1)")
-                                              : " (1:1 crop of " + std::to_string(v.width) + "×" + std::to_string(v.height) +
-                                                    " pixels at x = " + std::to_string(v.image_x) + ", y = " +
-                                                    std::to_string(v.image_y) + ")";
-      o << "<div class=\"viewer\" id=\"viewer-" << id << "\">\n<h3>" << html_escape(v.file + where) << "</h3>\n<div class=\"pair\">"
-        << "<figure>" << img_tag(v.original) << "<figcaption>" << html_escape(v.original.caption) << "</figcaption></figure>";
-      if (v.live) {
-        o << "<figure><canvas width=\"" << v.width << "\" height=\"" << v.height
-          << "\" role=\"img\" aria-label=\"Reconstruction of " << html_escape(v.file)
-          << "\"></canvas><figcaption>Reconstructed in your browser from the embedded basis and coefficients, "
-             "rounded and clipped like the written files</figcaption></figure>";
-      } else {
-        o << "<figure><img class=\"stepped\" alt=\"Reconstruction of " << html_escape(v.file)
-          << "\" src=\"data:image/png;base64,\"><figcaption>Precomputed reconstructions at the swept k (the live "
-             "viewer rebuilds bases of d up to 192 only)</figcaption></figure>";
-      }
-      o << "</div>\n<div class=\"controls\"><label for=\"slider-" << id << "\">Components kept (k)</label>";
-      if (v.live) {
-        o << "<input type=\"range\" id=\"slider-" << id << "\" min=\"1\" max=\"" << v.rank << "\" step=\"1\" value=\""
-          << v.initial_k << "\">";
-      } else {
-        std::size_t at = 0;
-        for (std::size_t j = 0; j < v.ks.size(); ++j)
-          if (v.ks[j] <= v.initial_k) at = j;
-        o << "<input type=\"range\" id=\"slider-" << id << "\" min=\"0\" max=\"" << (v.ks.empty() ? 0 : v.ks.size() - 1)
-          << "\" step=\"1\" value=\"" << at << "\">";
-      }
-      o << "<output for=\"slider-" << id << "\" aria-live=\"polite\">k = <span class=\"k-value\">" << v.initial_k
-        << "</span> · PSNR <span class=\"psnr-value\"></span> dB</output></div>\n</div>\n";
-      nlohmann::json j = {{"file", v.file}, {"live", v.live}};
-      if (v.live) {
-        j.update({{"width", v.width}, {"height", v.height}, {"channels", v.channels}, {"bit_depth", v.bit_depth},
-                  {"patch_height", v.patch_height}, {"patch_width", v.patch_width}, {"stride_y", v.stride_y},
-                  {"stride_x", v.stride_x}, {"padded_width", v.padded_width}, {"padded_height", v.padded_height},
-                  {"patches_across", v.patches_across}, {"patches_down", v.patches_down},
-                  {"crop_x", v.crop_x}, {"crop_y", v.crop_y}, {"image_x", v.image_x}, {"image_y", v.image_y},
-                  {"whole_image", v.whole_image},
-                  {"joint_colour", v.joint_colour}, {"dimension", v.dimension}, {"rank", v.rank},
-                  {"observations", v.observations}, {"mean_f32", base64_encode(v.mean_f32)},
-                  {"components_f32", base64_encode(v.components_f32)},
-                  {"coefficients_f32", base64_encode(v.coefficients_f32)},
-                  {"original_samples", base64_encode(v.original_samples)}});
-        // The self-test visits the swept ks (so the PSNR can be checked against batch.csv).
-        j["test_positions"] = v.ks;
-      } else {
-        std::vector<std::string> pngs;
-        for (const auto& p : v.pngs) pngs.push_back(base64_encode(p));
-        nlohmann::json ps = nlohmann::json::array();
-        for (double p : v.psnr_db) ps.push_back(json_real(p));
-        std::vector<int> positions_all;
-        for (std::size_t q = 0; q < v.ks.size(); ++q) positions_all.push_back(int(q));
-        j.update({{"ks", v.ks}, {"pngs", pngs}, {"psnr_db", ps}, {"test_positions", positions_all}});
-      }
-      viewer_data.push_back(std::move(j));
-    }
-    o << "</section>\n";
+  if (r.viewers.empty()) return viewer_data;
+  o << "<section id=\"viewers\"><h2>Reconstruction at any k</h2>\n<p class=\"note\">" << html_escape(r.viewer_note)
+    << "</p>\n";
+  for (std::size_t i = 0; i < r.viewers.size(); ++i) {
+    write_viewer_markup(o, r.viewers[i], i);
+    viewer_data.push_back(viewer_json(r.viewers[i]));
   }
-  for (std::size_t s = std::min(r.viewers_after, r.sections.size()); s < r.sections.size(); ++s) section_html(s);
-  if (!r.panels.empty()) {
-    o << "<section id=\"files\"><h2>Files: original, reconstruction, error</h2>\n<p class=\"note\">"
-      << html_escape(r.panels_note) << "</p>\n";
-    if (!r.error_scale_colours.empty()) {
-      o << "<p class=\"scale\">Error heat map: <span>0</span><span class=\"bar\" style=\"background: linear-gradient(to right";
-      for (const auto& c : r.error_scale_colours) o << ", " << c;
-      o << ")\" role=\"img\" aria-label=\"colour scale from dark purple (no error) to yellow (largest error)\"></span>"
-        << "<span>max</span> <span class=\"note\">" << html_escape(r.error_scale_note) << "</span></p>\n";
-    }
-    for (const auto& p : r.panels) {
-      o << "<div class=\"panel\"><h3>" << html_escape(p.file) << "</h3>";
-      if (!p.note.empty()) o << "<p class=\"note\">" << html_escape(p.note) << "</p>";
-      if (!p.preview_title.empty()) o << "<h4>" << html_escape(p.preview_title) << "</h4>";
-      o << figure(p.original) << figure(p.reconstruction) << figure(p.error_map);
-      for (const auto& c : p.crops) {
-        o << "<h4>" << html_escape(c.title) << "</h4>" << figure(c.original) << figure(c.reconstruction)
-          << figure(c.error_map);
-      }
-      o << "</div>\n";
-    }
-    o << "</section>\n";
+  o << "</section>\n";
+  return viewer_data;
+}
+
+// The files' section: the error scale, then per file its preview triple and crops.
+void write_panels(std::ostringstream& o, const HtmlReport& r) {
+  if (r.panels.empty()) return;
+  o << "<section id=\"files\"><h2>Files: original, reconstruction, error</h2>\n<p class=\"note\">"
+    << html_escape(r.panels_note) << "</p>\n";
+  if (!r.error_scale_colours.empty()) {
+    o << "<p class=\"scale\">Error heat map: <span>0</span><span class=\"bar\" style=\"background: linear-gradient(to right";
+    for (const auto& c : r.error_scale_colours) o << ", " << c;
+    o << ")\" role=\"img\" aria-label=\"colour scale from dark purple (no error) to yellow (largest error)\"></span>"
+      << "<span>max</span> <span class=\"note\">" << html_escape(r.error_scale_note) << "</span></p>\n";
   }
+  for (const auto& p : r.panels) {
+    o << "<div class=\"panel\"><h3>" << html_escape(p.file) << "</h3>";
+    if (!p.note.empty()) o << "<p class=\"note\">" << html_escape(p.note) << "</p>";
+    if (!p.preview_title.empty()) o << "<h4>" << html_escape(p.preview_title) << "</h4>";
+    o << figure(p.original) << figure(p.reconstruction) << figure(p.error_map);
+    for (const auto& c : p.crops) {
+      o << "<h4>" << html_escape(c.title) << "</h4>" << figure(c.original) << figure(c.reconstruction)
+        << figure(c.error_map);
+    }
+    o << "</div>\n";
+  }
+  o << "</section>\n";
+}
+
+// The components' section, the footer with the caution, and the scripts.
+void write_page_end(std::ostringstream& o, const HtmlReport& r, const nlohmann::json& viewer_data) {
   if (!r.components.empty()) {
     o << "<section id=\"components\" class=\"components\"><h2>Leading components</h2>\n<p class=\"note\">"
       << html_escape(r.components_note) << "</p>\n";
@@ -428,6 +448,19 @@ std::string render_report_html(const HtmlReport& r) {
   for (std::size_t at = 0; (at = data.find("</", at)) != std::string::npos;) data.replace(at, 2, "<\\/");
   o << "<script id=\"viewer-data\" type=\"application/json\">" << data << "</script>\n<script>" << kScript
     << "</script>\n</body>\n</html>\n";
+}
+
+}  // namespace
+
+std::string render_report_html(const HtmlReport& r) {
+  std::ostringstream o;
+  write_page_head(o, r);
+  const std::size_t before_viewers = std::min(r.viewers_after, r.sections.size());
+  for (std::size_t s = 0; s < before_viewers; ++s) write_section(o, r.sections[s]);
+  const nlohmann::json viewer_data = write_viewers(o, r);
+  for (std::size_t s = before_viewers; s < r.sections.size(); ++s) write_section(o, r.sections[s]);
+  write_panels(o, r);
+  write_page_end(o, r, viewer_data);
   return o.str();
 }
 
