@@ -573,6 +573,81 @@ void drop_last_channel(std::uint16_t* samples, std::size_t pixels, int from) {
     for (int c = 0; c + 1 < from; ++c) samples[q++] = samples[p * from + c];
 }
 
+// Bytes the IDAT stream inflates to: one filter byte per row of each pass
+// (PNG §7.2, §8.2), Adam7's seven passes when interlaced. Pure arithmetic.
+std::uint64_t filtered_size(std::uint64_t width, std::uint64_t height, std::uint64_t bits_per_pixel, int interlace) {
+  if (interlace != PNG_INTERLACE_ADAM7) return height * (1 + (width * bits_per_pixel + 7) / 8);
+  std::uint64_t filtered = 0;
+  for (int pass = 0; pass < 7; ++pass) {
+    const std::uint64_t cols = PNG_PASS_COLS(width, pass);
+    const std::uint64_t rows = PNG_PASS_ROWS(height, pass);
+    if (cols && rows) filtered += rows * (1 + (cols * bits_per_pixel + 7) / 8);
+  }
+  return filtered;
+}
+
+// The row readers below run inside run_libpng's setjmp frame and libpng may
+// longjmp out of them: like it, they hold no object with a destructor.
+
+// Adam7: libpng needs the whole image at once. Reads all `channels` into
+// image.samples (sized for them), widens 8-bit samples, then drops the last
+// channel when `drop`.
+void read_interlaced(ReadJob* job, png_structp png, png_uint_32 width, png_uint_32 height, int channels,
+                     int out_depth, bool drop) {
+  Image& image = job->image;
+  const std::size_t dst_row = std::size_t(width) * image.channels;
+  job->row_pointers.resize(height);
+  for (png_uint_32 y = 0; y < height; ++y)
+    job->row_pointers[y] = reinterpret_cast<png_bytep>(image.samples.data() + std::size_t(y) * dst_row);
+  png_read_image(png, job->row_pointers.data());
+  if (out_depth == 8)
+    for (png_uint_32 y = 0; y < height; ++y) widen_in_place(image.samples.data() + std::size_t(y) * dst_row, dst_row);
+  if (drop) {
+    const int kept = channels - 1;
+    drop_last_channel(image.samples.data(), std::size_t(width) * height, channels);
+    image.samples.resize(std::size_t(width) * height * kept);
+    image.samples.shrink_to_fit();
+    image.channels = kept;
+  }
+}
+
+// Row by row straight into image.samples, widening 8-bit samples in place.
+void read_rows(ReadJob* job, png_structp png, png_uint_32 width, png_uint_32 height, int out_depth) {
+  Image& image = job->image;
+  const std::size_t dst_row = std::size_t(width) * image.channels;
+  for (png_uint_32 y = 0; y < height; ++y) {
+    std::uint16_t* dst = image.samples.data() + std::size_t(y) * dst_row;
+    png_read_row(png, reinterpret_cast<png_bytep>(dst), nullptr);
+    if (out_depth == 8) widen_in_place(dst, dst_row);
+  }
+}
+
+// Row by row through job->row (`row_bytes`), keeping all channels but the last (alpha).
+void read_rows_dropping_alpha(ReadJob* job, png_structp png, png_uint_32 width, png_uint_32 height, int channels,
+                              int out_depth, std::size_t row_bytes) {
+  Image& image = job->image;
+  const int kept = channels - 1;
+  const std::size_t dst_row = std::size_t(width) * kept;
+  job->row.resize(row_bytes);
+  for (png_uint_32 y = 0; y < height; ++y) {
+    png_read_row(png, job->row.data(), nullptr);
+    std::uint16_t* dst = image.samples.data() + std::size_t(y) * dst_row;
+    const std::uint8_t* src = job->row.data();
+    for (std::size_t x = 0; x < width; ++x) {
+      for (int c = 0; c < kept; ++c) {
+        const std::size_t i = x * channels + c;
+        if (out_depth == 8) {
+          dst[x * kept + c] = src[i];
+        } else {
+          std::uint16_t v;
+          std::memcpy(&v, src + 2 * i, 2);
+          dst[x * kept + c] = v;
+        }
+      }
+    }
+  }
+}
+
 // All libpng work. No object with a destructor lives in this frame, and nothing read after a
 // longjmp was changed after setjmp except through `job` (a pointer set before): setjmp/longjmp
 // rules of C and [csetjmp.syn]. Returns false on a libpng error (message in job->message);
@@ -593,22 +668,12 @@ bool run_libpng(ReadJob* job) {
   const int file_channels = png_get_channels(png, info);  // palette: 1 (the index)
 
   // Size guard from IHDR, before any allocation. Plausibility: the zlib stream of the IDAT
-  // chunks inflates to exactly `filtered` bytes (§7.2, §8.2: one filter byte per row of each
-  // pass). Deflate (RFC 1951) expands at most 1032:1: its densest code is a 258-byte match
-  // (length code 285) with a one-bit literal/length code and a one-bit distance code in a dynamic
-  // block, 258 bytes per 2 bits; block headers only add bits. So the file needs at least
-  // filtered/1032 bytes (the whole file is counted, generously).
-  const std::uint64_t bits_per_pixel = std::uint64_t(file_channels) * std::uint64_t(depth);
-  std::uint64_t filtered = 0;
-  if (interlace == PNG_INTERLACE_ADAM7) {
-    for (int pass = 0; pass < 7; ++pass) {
-      const std::uint64_t cols = PNG_PASS_COLS(std::uint64_t(width), pass);
-      const std::uint64_t rows = PNG_PASS_ROWS(std::uint64_t(height), pass);
-      if (cols && rows) filtered += rows * (1 + (cols * bits_per_pixel + 7) / 8);
-    }
-  } else {
-    filtered = std::uint64_t(height) * (1 + (std::uint64_t(width) * bits_per_pixel + 7) / 8);
-  }
+  // chunks inflates to exactly filtered_size() bytes. Deflate (RFC 1951) expands at most
+  // 1032:1: its densest code is a 258-byte match (length code 285) with a one-bit literal/length
+  // code and a one-bit distance code in a dynamic block, 258 bytes per 2 bits; block headers only
+  // add bits. So the file needs at least filtered/1032 bytes (the whole file is counted, generously).
+  const std::uint64_t filtered =
+      filtered_size(width, height, std::uint64_t(file_channels) * std::uint64_t(depth), interlace);
   guard_declared_size(job->name, width, height, job->options.max_pixels, double(filtered) / 1032.0,
                       job->file_bytes, "deflate's largest expansion, 1032:1 (RFC 1951)");
 
@@ -632,54 +697,16 @@ bool run_libpng(ReadJob* job) {
                      ")");
   }
   const bool drop = job->options.drop_alpha && (channels == 2 || channels == 4);
-  const int kept = drop ? channels - 1 : channels;
   Image& image = job->image;
   image.width = int(width);
   image.height = int(height);
   image.bit_depth = out_depth;
   const bool whole = passes > 1;  // Adam7: libpng needs the whole image
-  image.channels = whole ? channels : kept;
+  image.channels = whole || !drop ? channels : channels - 1;
   image.samples.resize(std::size_t(height) * width * image.channels);
-  const std::size_t dst_row = std::size_t(width) * image.channels;
-  if (whole) {
-    job->row_pointers.resize(height);
-    for (png_uint_32 y = 0; y < height; ++y)
-      job->row_pointers[y] = reinterpret_cast<png_bytep>(image.samples.data() + std::size_t(y) * dst_row);
-    png_read_image(png, job->row_pointers.data());
-    if (out_depth == 8)
-      for (png_uint_32 y = 0; y < height; ++y) widen_in_place(image.samples.data() + std::size_t(y) * dst_row, dst_row);
-    if (drop) {
-      drop_last_channel(image.samples.data(), std::size_t(width) * height, channels);
-      image.samples.resize(std::size_t(width) * height * kept);
-      image.samples.shrink_to_fit();
-      image.channels = kept;
-    }
-  } else if (!drop) {
-    for (png_uint_32 y = 0; y < height; ++y) {
-      std::uint16_t* dst = image.samples.data() + std::size_t(y) * dst_row;
-      png_read_row(png, reinterpret_cast<png_bytep>(dst), nullptr);
-      if (out_depth == 8) widen_in_place(dst, dst_row);
-    }
-  } else {
-    job->row.resize(png_get_rowbytes(png, info));
-    for (png_uint_32 y = 0; y < height; ++y) {
-      png_read_row(png, job->row.data(), nullptr);
-      std::uint16_t* dst = image.samples.data() + std::size_t(y) * dst_row;
-      const std::uint8_t* src = job->row.data();
-      for (std::size_t x = 0; x < width; ++x) {
-        for (int c = 0; c < kept; ++c) {
-          const std::size_t i = x * channels + c;
-          if (out_depth == 8) {
-            dst[x * kept + c] = src[i];
-          } else {
-            std::uint16_t v;
-            std::memcpy(&v, src + 2 * i, 2);
-            dst[x * kept + c] = v;
-          }
-        }
-      }
-    }
-  }
+  if (whole) read_interlaced(job, png, width, height, channels, out_depth, drop);
+  else if (!drop) read_rows(job, png, width, height, out_depth);
+  else read_rows_dropping_alpha(job, png, width, height, channels, out_depth, png_get_rowbytes(png, info));
   // The rest of the stream: the end of the zlib data (Adler-32), the remaining chunks with their
   // CRCs, IEND.
   png_read_end(png, nullptr);
