@@ -9,7 +9,9 @@
 #include "cli/image_options.hpp"
 #include "cli/signal_options.hpp"
 #include "core/error.hpp"
-#include "pipeline/batch.hpp"
+#include "pipeline/batch_study.hpp"
+#include "present/batch_outputs.hpp"
+#include "present/batch_tables.hpp"
 
 #ifndef PCASWEEP_SAMPLES_DIR
 #define PCASWEEP_SAMPLES_DIR "samples"
@@ -89,12 +91,12 @@ Action setup_demo(CLI::App& sub) {
     batch.settings_json["layout_text"] = "8x8 patches (default), per-file basis";
     CollectedInputs inputs;
     inputs.files = images;
-    const BatchResult result = run_batch(inputs, batch);
+    const BatchStudy study = study_batch(inputs, batch);
     const std::string batch_dir = (fs::path(args->out) / "batch").string();
-    write_batch_outputs(result, batch, batch_dir);
-    std::cout << "\nbatch: " << batch_summary_line(result, batch) << "\n"
+    write_batch_outputs(study, batch, batch_dir);
+    std::cout << "\nbatch: " << batch_summary_line(study.result, study.figures, batch.target) << "\n"
               << "report: " << (fs::absolute(fs::path(batch_dir) / "report.html")).string() << "\n";
-    if (!result.failures.empty()) ++failures;
+    if (!study.result.failures.empty()) ++failures;
     return failures ? 1 : 0;
   };
 }

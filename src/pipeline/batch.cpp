@@ -47,8 +47,8 @@ ImageAnalysis observe_file(const std::string& path, const ImageStudySettings& se
   return a;  // streamed: the patches are cut band by band when they are used
 }
 
-void check_against_shared(const ImageAnalysis& a, const SharedBasisInfo& shared, int bit_depth,
-                          const std::string& path) {
+void check_against_shared(const ImageAnalysis& a, const SharedBasisInfo& shared, const std::string& path) {
+  const int bit_depth = shared.bit_depth;
   if (a.dimension() != shared.dimension) {
     throw data_error(path + ": " + std::to_string(a.dimension()) + " variables per patch (" +
                      std::to_string(a.image().channels) + " channel(s)), the shared basis has " +
@@ -60,28 +60,23 @@ void check_against_shared(const ImageAnalysis& a, const SharedBasisInfo& shared,
   }
 }
 
-int column_index(const Table& t, const std::string& name) {
-  for (std::size_t i = 0; i < t.columns.size(); ++i)
-    if (t.columns[i] == name) return int(i);
-  return -1;
+ImageAnalysis observe_on_shared(const std::string& path, const ImageStudySettings& settings,
+                                const SharedBasisInfo& shared) {
+  ImageAnalysis a = observe_file(path, settings);
+  check_against_shared(a, shared, path);
+  a.basis = shared.basis;
+  return a;
 }
 
-double cell_number(const Cell& c) {
-  if (const double* d = std::get_if<double>(&c)) return *d;
-  if (const std::int64_t* i = std::get_if<std::int64_t>(&c)) return double(*i);
-  return std::numeric_limits<double>::quiet_NaN();
-}
+}  // namespace detail
 
-const std::vector<Cell>* row_at(const FileResult& f, int k) {
-  const int kc = column_index(f.sweep, "k");
-  if (kc < 0 || f.sweep.rows.empty()) return nullptr;
-  const std::vector<Cell>* best = nullptr;
+const SweepRow* row_at(const FileResult& f, int k) {
+  const SweepRow* best = nullptr;
   int best_k = 0;
-  for (const auto& row : f.sweep.rows) {
-    const int rk = int(cell_number(row[kc]));
-    if (rk == k) return &row;
-    if (rk > best_k) {
-      best_k = rk;
+  for (const SweepRow& row : f.rows) {
+    if (row.k == k) return &row;
+    if (row.k > best_k) {
+      best_k = row.k;
       best = &row;
     }
   }
@@ -89,22 +84,18 @@ const std::vector<Cell>* row_at(const FileResult& f, int k) {
   return k > best_k ? best : nullptr;
 }
 
-double value_at(const FileResult& f, int k, const std::string& column) {
-  const int c = column_index(f.sweep, column);
-  if (c < 0) return std::numeric_limits<double>::quiet_NaN();
-  const auto* row = row_at(f, k);
-  return row ? cell_number((*row)[c]) : std::numeric_limits<double>::quiet_NaN();
-}
-
-double stored_at(const FileResult& f, int k) {
-  return value_at(f, k, kStoredColumn);
-}
-
 FileQuality quality_at(const FileResult& f, int k) {
-  return {value_at(f, k, "psnr_db"), value_at(f, k, kSsimColumn)};
+  const SweepRow* row = row_at(f, k);
+  if (!row) return {};
+  return {row->quality.psnr_db, row->ssim};
 }
 
-}  // namespace detail
+std::vector<const FileResult*> swept_files(const BatchResult& result) {
+  std::vector<const FileResult*> out;
+  for (const auto& f : result.files)
+    if (f.ok) out.push_back(&f);
+  return out;
+}
 
 using namespace detail;
 
@@ -147,9 +138,9 @@ std::string error_text(const std::exception_ptr& ep, const std::string& path) {
   }
 }
 
-}  // namespace
 
-BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settings, const BatchProgressFn& progress) {
+
+void validate_settings(const BatchSettings& settings) {
   if (settings.threads < 1) throw usage_error("--threads must be at least 1");
   if (!(settings.target.coverage > 0.0 && settings.target.coverage <= 1.0))
     throw usage_error("--coverage must be a share in (0, 1] or a percentage in (0, 100]");
@@ -158,269 +149,201 @@ BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settin
     throw usage_error("--train-fraction must be in (0, 1]");
   if (settings.coding.enabled && settings.basis == BasisMode::shared)
     throw usage_error("--quality (coded bytes) works with --basis per-file only: the codec embeds each file's own basis");
-  const auto start = std::chrono::steady_clock::now();
-  BatchResult result;
-  result.inputs = inputs;
-  const std::size_t n = inputs.files.size();
-  result.files.resize(n);
-  for (std::size_t i = 0; i < n; ++i) result.files[i].path = inputs.files[i];
-  if (n == 0 && inputs.failed.empty()) throw data_error("no image files among the inputs");
+}
 
-  std::mutex mutex;
-  BatchProgress state;
+// The training files of a shared basis, each with its index into the batch
+// (the batch's size for a --train file that is not in the batch).
+struct TrainingPlan {
+  std::vector<std::string> paths;
+  std::vector<std::size_t> index;
+};
 
-  // Shared basis: accumulate the training files' scatter, one file at a time.
-  int shared_bit_depth = 0;
-  if (settings.basis == BasisMode::shared && n > 0) {
-    SharedBasisInfo shared;
-    std::vector<std::string> training_paths;
-    std::vector<std::size_t> training_index;  // into files, or n for an extra file
-    if (!settings.train_files.empty()) {
-      CollectOptions co;
-      co.supported = has_image_extension;
-      const CollectedInputs train = collect_inputs(settings.train_files, co);
-      for (const auto& f : train.failed) result.failures.push_back({f.path, "--train: " + f.reason});
-      std::map<std::string, std::size_t> index;
-      for (std::size_t i = 0; i < n; ++i) index.emplace(canonical_key(inputs.files[i]), i);
-      for (const auto& p : train.files) {
-        const auto it = index.find(canonical_key(p));
-        training_paths.push_back(p);
-        training_index.push_back(it == index.end() ? n : it->second);
-        if (it == index.end()) shared.training_extra.push_back(p);
-      }
-      if (training_paths.empty()) throw usage_error("--train: no image files among the training inputs");
-    } else {
-      for (std::size_t i : draw_training(n, settings.train_fraction, settings.seed)) {
-        training_paths.push_back(inputs.files[i]);
-        training_index.push_back(i);
-      }
+// --train files, or a seeded draw of train_fraction of the batch. Unreadable
+// --train inputs are added to result.failures; extra files to shared.training_extra.
+TrainingPlan plan_training(const BatchSettings& settings, BatchResult& result, SharedBasisInfo& shared) {
+  const std::vector<std::string>& files = result.inputs.files;
+  const std::size_t n = files.size();
+  TrainingPlan plan;
+  if (settings.train_files.empty()) {
+    for (std::size_t i : draw_training(n, settings.train_fraction, settings.seed)) {
+      plan.paths.push_back(files[i]);
+      plan.index.push_back(i);
     }
-    std::unique_ptr<ScatterSum> sum;
-    state.phase = "training";
-    state.total = training_paths.size();
-    for (std::size_t t = 0; t < training_paths.size(); ++t) {
-      const std::string& path = training_paths[t];
-      try {
-        ImageAnalysis a = observe_file(path, settings.image);
-        if (!sum) {
-          sum = std::make_unique<ScatterSum>(a.dimension());
-          shared.dimension = a.dimension();
-          shared_bit_depth = a.image().bit_depth;
-        }
-        check_against_shared(a, shared, shared_bit_depth, path);
-        const PatchBlocks blocks(*a.patches(), a.image());
-        const BlockedOperator<double> op(blocks);
-        sum->add(op);
-        shared.training_files.push_back(path);
-        if (training_index[t] < n) result.files[training_index[t]].training = true;
-      } catch (...) {
-        const std::string why = error_text(std::current_exception(), path);
-        if (training_index[t] < n) {
-          result.files[training_index[t]].error = why;  // reported once, in the sweep below
-        } else {
-          result.failures.push_back({path, why});
-          ++state.failed;
-        }
-      }
-      ++state.done;
-      state.last = path;
-      if (progress) progress(state);
-    }
-    if (!sum || sum->rows() < 2) throw data_error("shared basis: no readable training file with at least 2 patches");
-    shared.observations = sum->rows();
-    shared.basis = solve_exact(*sum);
-    shared.basis.solver_reason = "shared basis: exact solver on the scatter accumulated over " +
-                                 std::to_string(sum->blocks()) + " training file(s)";
-    result.shared = std::move(shared);
+    return plan;
   }
+  CollectOptions co;
+  co.supported = has_image_extension;
+  const CollectedInputs train = collect_inputs(settings.train_files, co);
+  for (const auto& f : train.failed) result.failures.push_back({f.path, "--train: " + f.reason});
+  std::map<std::string, std::size_t> index;
+  for (std::size_t i = 0; i < n; ++i) index.emplace(canonical_key(files[i]), i);
+  for (const auto& p : train.files) {
+    const auto it = index.find(canonical_key(p));
+    plan.paths.push_back(p);
+    plan.index.push_back(it == index.end() ? n : it->second);
+    if (it == index.end()) shared.training_extra.push_back(p);
+  }
+  if (plan.paths.empty()) throw usage_error("--train: no image files among the training inputs");
+  return plan;
+}
 
-  // The sweep: `workers` files at a time, each file's linear algebra on one
-  // thread. Measured (docs/batch.md): with OpenMP inside each file instead,
-  // a 24-file batch took 6x longer on the 2-core reference machine, the
-  // threads spinning at every small parallel region; so the files are the
-  // unit of parallelism even with --threads 1.
+// Adds one training file's patch scatter to `sum` (made on the first file,
+// which also fixes the basis's d and bit depth). Throws Error.
+void accumulate_training_file(const std::string& path, const ImageStudySettings& settings,
+                              std::unique_ptr<ScatterSum>& sum, SharedBasisInfo& shared) {
+  ImageAnalysis a = observe_file(path, settings);
+  if (!sum) {
+    sum = std::make_unique<ScatterSum>(a.dimension());
+    shared.dimension = a.dimension();
+    shared.bit_depth = a.image().bit_depth;
+  }
+  check_against_shared(a, shared, path);
+  const PatchBlocks blocks(*a.patches(), a.image());
+  const BlockedOperator<double> op(blocks);
+  sum->add(op);
+  shared.training_files.push_back(path);
+}
+
+// The shared basis: the training files' scatter accumulated one file at a
+// time, solved once by the exact solver. A training file of the batch that
+// cannot be read keeps its reason in its FileResult (reported once, in the
+// sweep); an extra one lands in result.failures. Throws Error(data) when no
+// training file gives at least 2 patches.
+SharedBasisInfo train_shared_basis(const BatchSettings& settings, BatchResult& result,
+                                   const BatchProgressFn& progress) {
+  SharedBasisInfo shared;
+  const TrainingPlan plan = plan_training(settings, result, shared);
+  const std::size_t n = result.files.size();
+  std::unique_ptr<ScatterSum> sum;
+  BatchProgress state;
+  state.phase = "training";
+  state.total = plan.paths.size();
+  for (std::size_t t = 0; t < plan.paths.size(); ++t) {
+    const std::string& path = plan.paths[t];
+    FileResult* in_batch = plan.index[t] < n ? &result.files[plan.index[t]] : nullptr;
+    try {
+      accumulate_training_file(path, settings.image, sum, shared);
+      if (in_batch) in_batch->training = true;
+    } catch (...) {
+      const std::string why = error_text(std::current_exception(), path);
+      if (in_batch) {
+        in_batch->error = why;
+      } else {
+        result.failures.push_back({path, why});
+        ++state.failed;
+      }
+    }
+    ++state.done;
+    state.last = path;
+    if (progress) progress(state);
+  }
+  if (!sum || sum->rows() < 2) throw data_error("shared basis: no readable training file with at least 2 patches");
+  shared.observations = sum->rows();
+  shared.basis = solve_exact(*sum);
+  shared.basis.solver_reason = "shared basis: exact solver on the scatter accumulated over " +
+                               std::to_string(sum->blocks()) + " training file(s)";
+  return shared;
+}
+
+// Sweeps one file at its ks: its own basis, or projected on `shared`. Fills
+// f's figures and rows and sets f.ok; throws Error for a file that fails.
+void sweep_file(FileResult& f, const BatchSettings& settings, const SharedBasisInfo* shared) {
+  const ImageAnalysis a = shared ? observe_on_shared(f.path, settings.image, *shared)
+                                 : analyze_image(f.path, settings.image);
+  const std::vector<int> ks = file_ks(settings.ks, a.basis.rank());
+  f.rows = sweep_ks(a, ks, {}, shared ? SweepCoding{} : settings.coding);
+  if (shared) {  // the basis is counted once for the batch: the file keeps its coefficients
+    const double raw = double(a.image().sample_count());
+    for (auto& r : f.rows) {
+      r.stored_values = std::int64_t(a.observations()) * r.k;
+      r.ratio = double(r.stored_values) / raw;
+    }
+  }
+  const Image& image = a.image();
+  f.width = image.width;
+  f.height = image.height;
+  f.channels = image.channels;
+  f.bit_depth = image.bit_depth;
+  f.channel_names = image.channel_names;
+  f.observations = a.observations();
+  f.dimension = a.dimension();
+  f.rank = a.basis.rank();
+  f.ok = true;
+}
+
+// One worker: takes the next file until none is left. A file that already
+// has an error (a training file that could not be read) is not tried again.
+void sweep_worker(BatchResult& result, const BatchSettings& settings, std::atomic<std::size_t>& next,
+                  std::mutex& mutex, BatchProgress& state, const BatchProgressFn& progress) {
+#ifdef _OPENMP
+  omp_set_num_threads(1);
+#endif
+  const SharedBasisInfo* shared = result.shared ? &*result.shared : nullptr;
+  for (std::size_t i; (i = next.fetch_add(1)) < result.files.size();) {
+    FileResult& f = result.files[i];
+    const auto t0 = std::chrono::steady_clock::now();
+    if (f.error.empty()) {
+      try {
+        sweep_file(f, settings, shared);
+      } catch (...) {
+        f.error = error_text(std::current_exception(), f.path);
+      }
+    }
+    f.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+    std::lock_guard<std::mutex> lock(mutex);
+    ++state.done;
+    if (!f.ok) ++state.failed;
+    state.last = f.path;
+    if (progress) progress(state);
+  }
+}
+
+// The sweep: `workers` files at a time, each file's linear algebra on one
+// thread. Measured (docs/batch.md): with OpenMP inside each file instead,
+// a 24-file batch took 6x longer on the 2-core reference machine, the
+// threads spinning at every small parallel region; so the files are the
+// unit of parallelism even with --threads 1.
+void sweep_files(BatchResult& result, const BatchSettings& settings, const BatchProgressFn& progress) {
+  const std::size_t n = result.files.size();
   const int workers = int(std::min<std::size_t>(std::size_t(settings.threads), std::max<std::size_t>(n, 1)));
   result.threads_used = workers;
   result.parallel_mode = "files";
-  const SerialLinearAlgebra serial(false);  // the worker threads set their own OpenMP teams below
+  const SerialLinearAlgebra serial(false);  // the worker threads set their own OpenMP teams
+  std::mutex mutex;
+  BatchProgress state;
   state.phase = "sweep";
-  state.done = 0;
   state.total = n;
-  state.failed = 0;
   std::atomic<std::size_t> next{0};
-  auto work = [&]() {
-#ifdef _OPENMP
-    omp_set_num_threads(1);
-#endif
-    for (std::size_t i; (i = next.fetch_add(1)) < n;) {
-      FileResult& f = result.files[i];
-      const auto t0 = std::chrono::steady_clock::now();
-      if (f.error.empty()) {
-        try {
-          ImageAnalysis a;
-          if (result.shared) {
-            a = observe_file(f.path, settings.image);
-            check_against_shared(a, *result.shared, shared_bit_depth, f.path);
-            a.basis = result.shared->basis;
-          } else {
-            a = analyze_image(f.path, settings.image);
-          }
-          const std::vector<int> ks = file_ks(settings.ks, a.basis.rank());
-          std::vector<SweepRow> rows = sweep_ks(a, ks, {}, result.shared ? SweepCoding{} : settings.coding);
-          if (result.shared) {
-            const double raw = double(a.image().sample_count());
-            for (auto& r : rows) {
-              r.stored_values = std::int64_t(a.observations()) * r.k;
-              r.ratio = double(r.stored_values) / raw;
-            }
-          }
-          f.sweep = sweep_table(rows, a.image().channel_names);
-          f.width = a.image().width;
-          f.height = a.image().height;
-          f.channels = a.image().channels;
-          f.bit_depth = a.image().bit_depth;
-          f.observations = a.observations();
-          f.dimension = a.dimension();
-          f.rank = a.basis.rank();
-          f.ok = true;
-        } catch (...) {
-          f.error = error_text(std::current_exception(), f.path);
-        }
-      }
-      f.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
-      std::lock_guard<std::mutex> lock(mutex);
-      ++state.done;
-      if (!f.ok) ++state.failed;
-      state.last = f.path;
-      if (progress) progress(state);
-    }
-  };
-  {
-    std::vector<std::thread> pool;
-    for (int w = 0; w < workers; ++w) pool.emplace_back(work);
-    for (auto& t : pool) t.join();
-  }
-  for (const auto& f : inputs.failed) result.failures.push_back(f);
+  std::vector<std::thread> pool;
+  for (int w = 0; w < workers; ++w)
+    pool.emplace_back([&] { sweep_worker(result, settings, next, mutex, state, progress); });
+  for (auto& t : pool) t.join();
+}
+
+// result.failures: those found while training, then the inputs that could
+// not be collected, then the files that failed, in input order.
+void collect_failures(BatchResult& result) {
+  for (const auto& f : result.inputs.failed) result.failures.push_back(f);
   for (const auto& f : result.files)
     if (!f.ok) result.failures.push_back({f.path, f.error});
-  result.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-  return result;
 }
 
-std::vector<int> batch_ks(const BatchResult& result) {
-  std::set<int> ks;
-  for (const auto& f : result.files) {
-    if (!f.ok) continue;
-    const int kc = column_index(f.sweep, "k");
-    for (const auto& row : f.sweep.rows) ks.insert(int(cell_number(row[kc])));
-  }
-  return {ks.begin(), ks.end()};
-}
-
-Table batch_table(const BatchResult& result) {
-  std::vector<std::string> columns;
-  for (const auto& f : result.files)
-    if (f.ok)
-      for (const auto& c : f.sweep.columns)
-        if (std::find(columns.begin(), columns.end(), c) == columns.end()) columns.push_back(c);
-  Table t;
-  t.columns = {"file"};
-  if (result.shared) t.columns.push_back("subset");
-  t.columns.insert(t.columns.end(), columns.begin(), columns.end());
-  for (const auto& f : result.files) {
-    if (!f.ok) continue;
-    std::vector<int> where;
-    for (const auto& c : columns) where.push_back(column_index(f.sweep, c));
-    for (const auto& row : f.sweep.rows) {
-      std::vector<Cell> cells = {f.path};
-      if (result.shared) cells.push_back(std::string(f.training ? "training" : "held_out"));
-      for (int w : where) cells.push_back(w < 0 ? Cell{} : row[w]);
-      t.add_row(std::move(cells));
-    }
-  }
-  return t;
-}
-
-namespace {
-// True if some file has a number (not an empty cell) in column `name`.
-bool any_column(const BatchResult& r, const std::string& name) {
-  for (const auto& f : r.files) {
-    const int c = f.ok ? column_index(f.sweep, name) : -1;
-    if (c < 0) continue;
-    for (const auto& row : f.sweep.rows)
-      if (!std::isnan(cell_number(row[c]))) return true;
-  }
-  return false;
-}
 }  // namespace
 
-Table aggregate_table(const BatchResult& result, const CoverageTarget& target) {
-  const bool ssim = any_column(result, kSsimColumn);
-  const bool bytes = any_column(result, kBytesColumn);
-  Table t;
-  t.columns = {"subset", "k", "files"};
-  for (const std::string m : {"psnr_db", "ssim"}) {
-    if (m == "ssim" && !ssim) continue;
-    for (const std::string s : {"min", "p5", "median", "mean"}) t.columns.push_back(m + "_" + s);
-  }
-  t.columns.insert(t.columns.end(), {"stored_values_total", "raw_samples_total", "stored_ratio"});
-  if (bytes) t.columns.insert(t.columns.end(), {"bytes_total", "bits_per_pixel_mean"});
-  t.columns.insert(t.columns.end(), {"files_meeting_target", "share_meeting_target"});
-  std::vector<std::string> subsets = {"all"};
-  if (result.shared) subsets = {"all", "training", "held_out"};
-  const std::vector<int> ks = batch_ks(result);
-  for (const auto& subset : subsets) {
-    for (int k : ks) {
-      std::vector<double> psnr, ss, bpp;
-      double stored = 0.0, raw = 0.0, byte_total = 0.0;
-      std::size_t count = 0, meeting = 0;
-      for (const auto& f : result.files) {
-        if (!f.ok) continue;
-        if (subset == "training" && !f.training) continue;
-        if (subset == "held_out" && f.training) continue;
-        if (!row_at(f, k)) continue;
-        ++count;
-        const FileQuality q = quality_at(f, k);
-        psnr.push_back(q.psnr_db);
-        ss.push_back(q.ssim);
-        meeting += meets_target(q, target) ? 1 : 0;
-        stored += stored_at(f, k);
-        raw += double(f.width) * f.height * f.channels;
-        if (bytes) {
-          const double b = value_at(f, k, kBytesColumn);
-          byte_total += b;
-          bpp.push_back(8.0 * b / (double(f.width) * f.height));
-        }
-      }
-      if (count == 0) continue;
-      if (result.shared) stored += double(k) * double(result.shared->dimension) + double(result.shared->dimension);
-      std::vector<Cell> row = {subset, std::int64_t(k), std::int64_t(count)};
-      const Spread p = spread_of(psnr);
-      row.insert(row.end(), {p.min, p.p5, p.median, p.mean});
-      if (ssim) {
-        const Spread s = spread_of(ss);
-        row.insert(row.end(), {s.min, s.p5, s.median, s.mean});
-      }
-      row.insert(row.end(), {std::int64_t(std::llround(stored)), std::int64_t(std::llround(raw)), stored / raw});
-      if (bytes) {
-        double mean_bpp = 0.0;
-        for (double b : bpp) mean_bpp += b;
-        row.insert(row.end(), {std::int64_t(std::llround(byte_total)), mean_bpp / double(bpp.size())});
-      }
-      row.insert(row.end(), {std::int64_t(meeting), double(meeting) / double(count)});
-      t.add_row(std::move(row));
-    }
-  }
-  return t;
-}
-
-Recommendation batch_recommendation(const BatchResult& result, const CoverageTarget& target) {
-  const std::vector<int> ks = batch_ks(result);
-  std::vector<std::vector<FileQuality>> q(ks.size());
-  for (std::size_t i = 0; i < ks.size(); ++i)
-    for (const auto& f : result.files)
-      if (f.ok) q[i].push_back(quality_at(f, ks[i]));
-  return recommend_k(ks, q, target);
+BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settings, const BatchProgressFn& progress) {
+  validate_settings(settings);
+  const auto start = std::chrono::steady_clock::now();
+  BatchResult result;
+  result.inputs = inputs;
+  result.files.resize(inputs.files.size());
+  for (std::size_t i = 0; i < inputs.files.size(); ++i) result.files[i].path = inputs.files[i];
+  if (inputs.files.empty() && inputs.failed.empty()) throw data_error("no image files among the inputs");
+  if (settings.basis == BasisMode::shared && !inputs.files.empty())
+    result.shared = train_shared_basis(settings, result, progress);
+  sweep_files(result, settings, progress);
+  collect_failures(result);
+  result.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+  return result;
 }
 
 }  // namespace pcasweep

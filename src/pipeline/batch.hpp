@@ -3,8 +3,8 @@
 // Contract: run_batch() takes the files collect_inputs() found and sweeps
 // each one, streaming: a file is read, observed, solved (per-file basis) or
 // projected on the shared basis, reconstructed at every k, measured, and
-// then dropped; only its table of figures (one row per k) is kept, so memory
-// does not grow with the number of files beyond those small tables.
+// then dropped; only its typed rows (one SweepRow per k) are kept, so memory
+// does not grow with the number of files beyond those small rows.
 //   per-file basis: analyze_image + sweep_ks per file (pipeline/image_study.hpp).
 //   shared basis:   the training files' scatter is accumulated file by file
 //                   (solve/scatter_sum.hpp) and solved once (exact solver);
@@ -15,8 +15,8 @@
 // batch goes on. Files are swept in parallel by `threads` workers and the
 // linear algebra inside each file runs on one thread (OpenMP and Eigen), so
 // the cores are not oversubscribed (measured faster: docs/batch.md).
-// write_batch_outputs() writes batch.csv, aggregate.csv, failing_files.csv,
-// failures.csv, summary.json and report.html (docs/batch.md), each atomically.
+// The figures across files are pipeline/batch_figures.hpp, the report's
+// pictures pipeline/batch_visuals.hpp; present/batch_outputs.hpp writes them.
 #pragma once
 
 #include <cstdint>
@@ -28,7 +28,6 @@
 #include "io/inputs.hpp"
 #include "measure/batch_stats.hpp"
 #include "pipeline/image_study.hpp"
-#include "report/table.hpp"
 
 namespace pcasweep {
 
@@ -54,22 +53,30 @@ struct BatchSettings {
   nlohmann::json settings_json;            // echoed into summary.json
 };
 
-
 struct FileResult {
   std::string path;
   bool ok = false;
   std::string error;             // one line, when !ok
   bool training = false;         // shared basis: the file is in the training subset
   int width = 0, height = 0, channels = 0, bit_depth = 0;
+  std::vector<std::string> channel_names;  // the image's, one per channel
   std::int64_t observations = 0, dimension = 0, rank = 0;
   double seconds = 0.0;
-  Table sweep;                   // sweep_table() of the file's rows (one per k)
+  std::vector<SweepRow> rows;    // sweep_ks() of the file, one per k, ascending
 };
+
+// The file's row at k; for k beyond its largest k, its last row (the file is
+// then reconstructed with every component it has). nullptr otherwise.
+const SweepRow* row_at(const FileResult& file, int k);
+
+// PSNR and SSIM at k (NaN when the file has no row for k).
+FileQuality quality_at(const FileResult& file, int k);
 
 struct SharedBasisInfo {
   std::vector<std::string> training_files;  // in the order accumulated
   std::vector<std::string> training_extra;  // training files that are not in the batch
   std::int64_t observations = 0, dimension = 0;
+  int bit_depth = 0;                        // of the training files; every file must match
   Basis basis;
 };
 
@@ -83,6 +90,9 @@ struct BatchResult {
   std::string parallel_mode;                // "files": files in parallel, one thread inside each
   int exit_code() const { return failures.empty() ? 0 : 1; }
 };
+
+// The files that were swept (ok), in input order.
+std::vector<const FileResult*> swept_files(const BatchResult& result);
 
 struct BatchProgress {
   std::size_t done = 0, total = 0, failed = 0;
@@ -98,29 +108,5 @@ using BatchProgressFn = std::function<void(const BatchProgress&)>;
 // (no files, no training file readable).
 BatchResult run_batch(const CollectedInputs& inputs, const BatchSettings& settings,
                       const BatchProgressFn& progress = {});
-
-// The ks that appear in any file's table, ascending.
-std::vector<int> batch_ks(const BatchResult& result);
-
-// Per-file rows with a leading `file` column (and `subset` for a shared
-// basis); columns are the union of the files' sweep tables.
-Table batch_table(const BatchResult& result);
-
-// Aggregates per k and subset (all; training, held_out for a shared basis):
-// files, psnr_db min/p5/median/mean, the same for ssim where measured, size
-// totals (stored values, and bytes and mean bits per pixel where the codec
-// columns exist), files meeting the target and their share.
-Table aggregate_table(const BatchResult& result, const CoverageTarget& target);
-
-// The recommendation over all files that were swept.
-Recommendation batch_recommendation(const BatchResult& result, const CoverageTarget& target);
-
-// Writes every output into `out_dir` (created if missing). Returns the
-// summary JSON that was written.
-nlohmann::json write_batch_outputs(const BatchResult& result, const BatchSettings& settings,
-                                   const std::string& out_dir);
-
-// One line for the console: "24 files swept (1 failed, 2 skipped) in 3.1 s; k = 8 serves 96% at PSNR >= 40 dB".
-std::string batch_summary_line(const BatchResult& result, const BatchSettings& settings);
 
 }  // namespace pcasweep
