@@ -10,21 +10,6 @@ namespace pcasweep {
 
 using namespace detail;
 
-Image component_image(const Basis& b, int j, const PatchOptions& p, int channels) {
-  const bool joint = p.colour == ColourMode::joint;
-  const int c_in = joint ? channels : 1;
-  const int c_out = c_in >= 3 ? 3 : 1;
-  Image img = make_image(p.patch_width, p.patch_height, c_out, 8);
-  const Eigen::VectorXd v = b.components.col(j);
-  const double scale = std::max(v.cwiseAbs().maxCoeff(), 1e-300);
-  for (int cell = 0; cell < img.width * img.height; ++cell)
-    for (int ch = 0; ch < c_out; ++ch) {
-      const double x = v(Eigen::Index(cell) * c_in + ch);
-      img.samples[std::size_t(cell) * c_out + ch] = std::uint16_t(std::lround(127.5 + 127.0 * x / scale));
-    }
-  return img;
-}
-
 namespace {
 
 // n files, at most max_count of them evenly spaced, plus the first of `must`
@@ -80,8 +65,7 @@ SpectrumVisuals spectrum_of(const ImageAnalysis& a, const std::string& file) {
   } catch (const Error& e) {
     out.choice_error = e.what();
   }
-  const int shown = int(std::min<Eigen::Index>(16, a.basis.rank()));
-  for (int j = 0; j < shown; ++j) out.components.push_back(component_image(a.basis, j, out.patch, a.image().channels));
+  out.channels = a.image().channels;
   return out;
 }
 

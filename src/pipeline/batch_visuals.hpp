@@ -5,8 +5,8 @@
 // basis, or projected on the shared one), one file at a time with the linear
 // algebra on one thread, and pipeline/file_visuals.hpp makes its previews,
 // 1:1 crops and (for the first settings.live_viewers files) the slider's
-// data. The first sampled file also gives the spectrum (the rules for k,
-// pipeline/k_choice.hpp) and the first components as patch images. Returns
+// data. The first sampled file also gives the spectrum: its basis (or the
+// shared one) and the rules for k (pipeline/k_choice.hpp). Returns
 // typed values only; present/batch_report.hpp renders them. A sampled file
 // that can no longer be read is left out of the pictures.
 // The sample: at most settings.report_sample of the swept files, evenly
@@ -46,8 +46,8 @@ struct SpectrumVisuals {
   Basis basis;
   std::optional<KChoice> choice;  // the rules for k; empty when they failed
   std::string choice_error;       // why, when choice is empty
-  PatchOptions patch;
-  std::vector<Image> components;  // the first min(16, r) components as 8-bit patch images
+  PatchOptions patch;             // the patch geometry of the basis's components
+  int channels = 0;               // of the image the patches were cut from
 };
 
 struct BatchVisuals {
@@ -65,10 +65,5 @@ struct BatchVisuals {
 // the caller's figures (a k outside a file's rank).
 BatchVisuals prepare_batch_visuals(const BatchResult& result, const BatchFigures& figures,
                                    const BatchSettings& settings);
-
-// Component j (0-based, j < r) of a patch basis (components d×r) as a
-// pw×ph 8-bit image, 3 channels for joint colour of 3 or more channels,
-// else gray: 127.5 + 127·v/max|v| per sample, rounded.
-Image component_image(const Basis& basis, int j, const PatchOptions& patch, int channels);
 
 }  // namespace pcasweep

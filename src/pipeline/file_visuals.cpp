@@ -178,27 +178,18 @@ VisualCrop make_crop(const ImageAnalysis& a, const std::string& label, int x, in
   return v;
 }
 
-}  // namespace
-
-FileVisuals file_visuals(const ImageAnalysis& a, int k, const std::vector<int>& viewer_ks, const VisualSettings& settings) {
-  const PatchLayout* layout = a.patches();
-  if (!layout || a.sources.size() != 1) throw usage_error("the report's pictures need one image cut into patches");
-  if (k < 1 || k > a.basis.rank()) throw usage_error("report: k = " + std::to_string(k) + " is outside 1.." + std::to_string(a.basis.rank()));
+// One pass at k: the whole image's figures and the previews into `out`.
+// Returns the top-left corner of the tile (tw×th) with the largest squared error.
+std::pair<int, int> sweep_at_k(const ImageAnalysis& a, int tw, int th, FileVisuals& out) {
   const Image& image = a.image();
-  FileVisuals out;
-  out.k = k;
-  out.preview_scale = std::max(1, (std::max(image.width, image.height) + settings.preview_side - 1) / settings.preview_side);
-  const int tw = std::min(settings.crop_side, image.width), th = std::min(settings.crop_side, image.height);
-
-  // One pass at k: the whole image's figures, the previews, the error per tile.
   PreviewSink preview(image, out.preview_scale);
   TileErrorSink tiles(image, tw, th);
   PatchSweepInputs in;
   in.image = &image;
-  in.layout = layout;
+  in.layout = a.patches();
   in.basis = &a.basis;
   PatchSweepPoint point;
-  point.k = k;
+  point.k = out.k;
   point.sinks = {&preview, &tiles};
   const PatchSweepResult result = run_patch_sweep(in, {point}).front();
   out.quality = result.quality;
@@ -206,24 +197,21 @@ FileVisuals file_visuals(const ImageAnalysis& a, int k, const std::vector<int>& 
   out.preview_reconstruction = preview.reconstruction(image.bit_depth);
   out.preview_error = preview.error();
   out.preview_error_max = out.preview_error.empty() ? 0.0 : *std::max_element(out.preview_error.begin(), out.preview_error.end());
-  {
-    PreviewSink original(image, out.preview_scale);
-    original.add(image.samples.data(), image.samples.data(), 0, image.height);
-    out.preview_original = original.reconstruction(image.bit_depth);
-  }
+  PreviewSink original(image, out.preview_scale);
+  original.add(image.samples.data(), image.samples.data(), 0, image.height);
+  out.preview_original = original.reconstruction(image.bit_depth);
+  return tiles.worst();
+}
 
-  // 1:1 crops: the finest detail and the largest error (one crop when they coincide).
-  const auto [dx, dy] = finest_detail(image, tw, th);
-  const auto [ex, ey] = tiles.worst();
-  out.crops.push_back(make_crop(a, "largest error at k = " + std::to_string(k), ex, ey, tw, th, k));
-  if (dx != ex || dy != ey) out.crops.push_back(make_crop(a, "finest detail", dx, dy, tw, th, k));
-  else out.crops.front().label += ", also the finest detail";
-
-  // The slider over the detail crop.
-  CropViewer& v = out.viewer;
-  v.crop = patch_crop(*layout, dx, dy, tw, th);
-  v.original = crop_of(image, v.crop);
-  const RowBlock observations = observe_crop(*layout, image, v.crop);
+// The slider over the crop at (x, y): the data to rebuild any k live, or
+// the crop's reconstruction at each of viewer_ks (stepped). Throws Error(usage).
+CropViewer crop_viewer(const ImageAnalysis& a, int x, int y, int w, int h, const std::vector<int>& viewer_ks,
+                       const VisualSettings& settings) {
+  const PatchLayout& layout = *a.patches();
+  CropViewer v;
+  v.crop = patch_crop(layout, x, y, w, h);
+  v.original = crop_of(a.image(), v.crop);
+  const RowBlock observations = observe_crop(layout, a.image(), v.crop);
   v.rank = int(a.basis.rank());
   v.dimension = int(a.basis.dimension());
   v.observations = int(observations.rows());
@@ -235,14 +223,36 @@ FileVisuals file_visuals(const ImageAnalysis& a, int k, const std::vector<int>& 
     RowBlock coefficients = observations * a.basis.components;
     coefficients.rowwise() -= a.basis.mean.transpose() * a.basis.components;
     v.coefficients_f32 = float32_bytes(coefficients.data(), std::size_t(coefficients.size()));
-  } else {
-    for (int kk : viewer_ks) {
-      if (kk < 1 || kk > a.basis.rank()) throw usage_error("report: viewer k out of range");
-      v.ks.push_back(kk);
-      v.images.push_back(crop_reconstruction(a, v.crop, observations, kk));
-      v.psnr_db.push_back(compare_images(v.original, v.images.back()).psnr_db);
-    }
+    return v;
   }
+  for (int kk : viewer_ks) {
+    if (kk < 1 || kk > a.basis.rank()) throw usage_error("report: viewer k out of range");
+    v.ks.push_back(kk);
+    v.images.push_back(crop_reconstruction(a, v.crop, observations, kk));
+    v.psnr_db.push_back(compare_images(v.original, v.images.back()).psnr_db);
+  }
+  return v;
+}
+
+}  // namespace
+
+FileVisuals file_visuals(const ImageAnalysis& a, int k, const std::vector<int>& viewer_ks, const VisualSettings& settings) {
+  const PatchLayout* layout = a.patches();
+  if (!layout || a.sources.size() != 1) throw usage_error("the report's pictures need one image cut into patches");
+  if (k < 1 || k > a.basis.rank()) throw usage_error("report: k = " + std::to_string(k) + " is outside 1.." + std::to_string(a.basis.rank()));
+  const Image& image = a.image();
+  FileVisuals out;
+  out.k = k;
+  out.preview_scale = std::max(1, (std::max(image.width, image.height) + settings.preview_side - 1) / settings.preview_side);
+  const int tw = std::min(settings.crop_side, image.width), th = std::min(settings.crop_side, image.height);
+  const auto [ex, ey] = sweep_at_k(a, tw, th, out);
+
+  // 1:1 crops: the finest detail and the largest error (one crop when they coincide).
+  const auto [dx, dy] = finest_detail(image, tw, th);
+  out.crops.push_back(make_crop(a, "largest error at k = " + std::to_string(k), ex, ey, tw, th, k));
+  if (dx != ex || dy != ey) out.crops.push_back(make_crop(a, "finest detail", dx, dy, tw, th, k));
+  else out.crops.front().label += ", also the finest detail";
+  out.viewer = crop_viewer(a, dx, dy, tw, th, viewer_ks, settings);
   return out;
 }
 

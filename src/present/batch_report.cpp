@@ -1,5 +1,6 @@
 #include "present/batch_report.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
 
@@ -213,17 +214,35 @@ HtmlSection spectrum_section(const SpectrumVisuals& sp, bool shared) {
   return sec;
 }
 
+// Component j of a patch basis as a small image: 127.5 + 127·v/max|v| per sample.
+Image component_image(const Basis& b, int j, const PatchOptions& p, int channels) {
+  const bool joint = p.colour == ColourMode::joint;
+  const int c_in = joint ? channels : 1;
+  const int c_out = c_in >= 3 ? 3 : 1;
+  Image img = make_image(p.patch_width, p.patch_height, c_out, 8);
+  const Eigen::VectorXd v = b.components.col(j);
+  const double scale = std::max(v.cwiseAbs().maxCoeff(), 1e-300);
+  for (int cell = 0; cell < img.width * img.height; ++cell)
+    for (int ch = 0; ch < c_out; ++ch) {
+      const double x = v(Eigen::Index(cell) * c_in + ch);
+      img.samples[std::size_t(cell) * c_out + ch] = std::uint16_t(std::lround(127.5 + 127.0 * x / scale));
+    }
+  return img;
+}
+
+// The first (at most 16) components of the spectrum's basis, as patches.
 void add_components(HtmlReport& h, const SpectrumVisuals& sp, bool shared) {
   const PatchOptions& po = sp.patch;
-  for (std::size_t j = 0; j < sp.components.size(); ++j)
-    h.components.push_back({encode_png(sp.components[j]),
+  const int shown = int(std::min<Eigen::Index>(16, sp.basis.rank()));
+  for (int j = 0; j < shown; ++j)
+    h.components.push_back({encode_png(component_image(sp.basis, j, po, sp.channels)),
                             "Component " + std::to_string(j + 1) + " as a " + std::to_string(po.patch_height) + "×" +
                                 std::to_string(po.patch_width) + " patch",
                             "#" + std::to_string(j + 1) + ", " +
-                                fixed(100.0 * sp.basis.eigenvalues(Eigen::Index(j)) / sp.basis.total_variance, 1) +
+                                fixed(100.0 * sp.basis.eigenvalues(j) / sp.basis.total_variance, 1) +
                                 "%",
                             true});
-  h.components_note = std::string("The first ") + std::to_string(sp.components.size()) + " components of " +
+  h.components_note = std::string("The first ") + std::to_string(shown) + " components of " +
                       (shared ? "the shared basis" : sp.file + "'s basis") +
                       " as patches: mid-gray is 0, lighter positive, darker negative (each scaled to its largest "
                       "entry). The percentage is the share of variance each carries.";
