@@ -9,6 +9,7 @@
 #include "cli/signal_options.hpp"
 #include "core/error.hpp"
 #include "pipeline/image_set.hpp"
+#include "present/component_images.hpp"
 #include "io/atomic_file.hpp"
 
 namespace pcasweep::cli {
@@ -72,7 +73,8 @@ Action setup_spectrum(CLI::App& sub) {
       nlohmann::json rules = k_choice_json(choice);
       rules["settings"] = k_settings_json(k_options, args->krules.log_scale);
       write_file_atomic(args->out + "/rules.json", rules.dump(2) + "\n");
-      const int components_written = write_component_images(a, args->out);
+      const int components_written = write_component_images(OutputFolder(args->out), a.basis.components,
+                                                            a.layout->observation_shape());
       std::cout << "wrote " << args->out << "/scree.svg, cumulative.svg, rules.json"
                 << (components_written > 0 ? ", components/ (" + std::to_string(components_written) + " images)"
                                            : std::string())

@@ -10,6 +10,7 @@
 #include "core/error.hpp"
 #include "pipeline/codec_study.hpp"
 #include "pipeline/image_set.hpp"
+#include "present/component_images.hpp"
 
 namespace pcasweep::cli {
 
@@ -97,7 +98,8 @@ Action setup_sweep(CLI::App& sub) {
     settings_json["png_level"] = args->png_level;
     const auto rows = write_sweep(analysis, ks, args->out, settings_json, extra, args->ssim_map, coding, output);
     write_k_charts(analysis.basis, choice, args->krules.log_scale, args->input, args->out);
-    const int components_written = write_component_images(analysis, args->out);
+    const int components_written = write_component_images(OutputFolder(args->out), analysis.basis.components,
+                                                            analysis.layout->observation_shape());
     if (!args->quiet) {
       std::cout << args->input << ": " << analysis.image().width << "x" << analysis.image().height << ", "
                 << analysis.image().channels << " channel(s), " << analysis.image().bit_depth << "-bit"

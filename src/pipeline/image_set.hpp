@@ -1,5 +1,6 @@
 // pcasweep/pipeline/image_set.hpp — several image files through one layout,
-// the solver's account of itself, and the components as pictures.
+// and the solver's account of itself. (The components as pictures:
+// present/component_images.hpp.)
 //
 // Contract: analyze_image_files reads every file, validates the whole set
 // (layout, sizes, observation count, k against min(N, d)) before solving,
@@ -42,21 +43,5 @@ nlohmann::json solver_json(const Basis& basis);
 
 // The same as console lines (each ending in "\n").
 std::string solver_lines(const Basis& basis);
-
-// Leading components (at most `limit`) of a basis whose layout observations
-// are images (layout.observation_shape() non-empty), each scaled
-// symmetrically around zero: sample = round(mid + (mid − ½)·v / max|v|),
-// mid = 127.5, so mid-gray is 0 and the largest |entry| reaches 0 or 255
-// (8-bit). Alpha channels are dropped (2 -> 1, 4 -> 3 channels). Each image
-// is enlarged `scale`× by nearest neighbour. Returns an empty vector when the
-// observations are not images.
-std::vector<Image> component_images(const Basis& basis, const Layout& layout, int limit, int scale);
-
-// Writes component_images() as <out_dir>/components/component_<i>.png
-// (i from 1, zero-padded to 2 digits), enlarged by the smallest whole factor
-// that makes the longer side at least 64 pixels, at most 8× (8×8 patches:
-// 8×, 25×25 faces: 3×, large pictures: 1×). Returns the number written
-// (0 for layouts whose observations are not images, such as bands).
-int write_component_images(const ImageAnalysis& analysis, const std::string& out_dir, int limit = 16);
 
 }  // namespace pcasweep
