@@ -57,7 +57,7 @@ int mode_entropy(const std::vector<std::string>& images, const std::string& qual
   for (const std::string& path : images) {
     const ImageStudySettings settings;
     const ImageAnalysis a = analyze_image(path, settings);
-    const auto* layout = dynamic_cast<const PatchLayout*>(a.layout.get());
+    const PatchLayout* layout = a.patches();
     if (!layout) throw usage_error(path + ": needs the patch layout");
     CoefficientGrid grid;
     grid.patches_across = std::size_t(layout->patches_across());

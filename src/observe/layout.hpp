@@ -7,6 +7,10 @@
 // fold(observe(s)) == s exactly (overlaps are averaged, padding cropped), so
 // a reconstruction at k = d rounds back to the input bit for bit.
 // Layouts never know how a basis is computed.
+// Which layout it is, where a caller needs the patch geometry (the streamed
+// sweep, the codec), is asked through patch_geometry(), never by casting.
+// Recordings are cut by WindowLayout (observe/windows.hpp), a seam of its own:
+// its sources are T×C sample matrices, not Images, and it folds back into one.
 #pragma once
 
 #include <Eigen/Dense>
@@ -17,6 +21,8 @@
 #include "observe/raster.hpp"
 
 namespace pcasweep {
+
+class PatchLayout;  // observe/patches.hpp
 
 class Layout {
  public:
@@ -42,6 +48,9 @@ class Layout {
     int width = 0, height = 0, channels = 0;
   };
   virtual ObservationShape observation_shape() const { return {}; }
+  // The patch geometry (patch and stride sizes, the grid, the mirror padding)
+  // when this layout cuts one image into patches; null for every other layout.
+  virtual const PatchLayout* patch_geometry() const { return nullptr; }
 };
 
 }  // namespace pcasweep

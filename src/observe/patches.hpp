@@ -53,6 +53,7 @@ class PatchLayout : public Layout {
   ObservationShape observation_shape() const override {
     return {options_.patch_width, options_.patch_height, options_.colour == ColourMode::joint ? channels_ : 1};
   }
+  const PatchLayout* patch_geometry() const override { return this; }
 
   // Observations of one band of patch rows, stored row-major so that one patch
   // (d values) is contiguous.

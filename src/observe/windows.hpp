@@ -24,6 +24,13 @@
 //   separate: each channel's windows are separate observations sharing one
 //             basis, d = N, observation count M·C (channel-major: channel c's
 //             windows are rows c·M … c·M + M − 1).
+//
+// A seam of its own, not a Layout (observe/layout.hpp): a Layout observes
+// Images and folds back one Raster per image; a recording is one T×C matrix
+// of samples in their native type, with a sample rate and no pixel grid, so
+// WindowLayout takes and returns that matrix. It keeps the same promises as a
+// Layout: name(), describe(), observation_count(), dimension(),
+// variable_names(), and the exact round trip fold(observe(x)) == x.
 #pragma once
 
 #include <Eigen/Dense>

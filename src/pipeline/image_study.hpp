@@ -56,8 +56,8 @@ struct ImageAnalysis {
   const std::string& input() const { return inputs.front(); }
   Eigen::Index observations() const { return layout->observation_count(); }
   Eigen::Index dimension() const { return layout->dimension(); }
-  // The patch geometry when the layout is patches, else null.
-  const PatchLayout* patches() const { return dynamic_cast<const PatchLayout*>(layout.get()); }
+  // The patch geometry when the layout is patches, else null (Layout::patch_geometry()).
+  const PatchLayout* patches() const { return layout->patch_geometry(); }
   // True when the observations are streamed (patches, X not held).
   bool streamed() const { return patches() != nullptr && X.size() == 0; }
 };
