@@ -1,6 +1,9 @@
 #include "cli/k_options.hpp"
 
+#include <cmath>
+
 #include "core/error.hpp"
+#include "report/table.hpp"
 
 namespace pcasweep::cli {
 
@@ -22,8 +25,8 @@ KChoiceSettings k_settings(const KOptionText& text) {
     throw usage_error("--target-psnr must be a positive number of dB, like 40");
   if (!std::isnan(text.target_ssim) && !(text.target_ssim > -1.0 && text.target_ssim <= 1.0))
     throw usage_error("--target-ssim must be in (-1, 1], like 0.95");
-  s.target.psnr_db = text.target_psnr;
-  s.target.ssim = text.target_ssim;
+  if (!std::isnan(text.target_psnr)) s.target.psnr_db = text.target_psnr;
+  if (!std::isnan(text.target_ssim)) s.target.ssim = text.target_ssim;
   return s;
 }
 
@@ -31,8 +34,8 @@ nlohmann::json k_settings_json(const KChoiceSettings& s, bool log_scale) {
   nlohmann::json keep = nlohmann::json::array();
   for (double f : s.keep_fractions) keep.push_back(100.0 * f);
   return {{"keep_variance_percent", keep},
-          {"target_psnr_db", json_real(s.target.psnr_db)},
-          {"target_ssim", json_real(s.target.ssim)},
+          {"target_psnr_db", json_real(s.target.psnr_db.value_or(NAN))},
+          {"target_ssim", json_real(s.target.ssim.value_or(NAN))},
           {"log_scale", log_scale}};
 }
 

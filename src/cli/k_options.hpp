@@ -6,10 +6,13 @@
 #include <limits>
 #include <string>
 
+#include <nlohmann/json.hpp>
+
 #include "pipeline/k_choice.hpp"
 
 namespace pcasweep::cli {
 
+// The options as typed (NaN: not given); k_settings() turns them into settings.
 struct KOptionText {
   std::string keep_variance = "90,95,99,99.9";
   double target_psnr = std::numeric_limits<double>::quiet_NaN();
@@ -20,7 +23,7 @@ struct KOptionText {
 // Declares --keep-variance, --target-psnr, --target-ssim and --log-scale on `sub`.
 void add_k_options(CLI::App& sub, KOptionText& text);
 
-// Turns the option text into settings. Throws Error(usage).
+// Turns the option text into settings (a goal not given stays unset). Throws Error(usage).
 KChoiceSettings k_settings(const KOptionText& text);
 
 // The settings as JSON, for summary.json.

@@ -10,6 +10,8 @@
 #include "core/error.hpp"
 #include "pipeline/image_set.hpp"
 #include "present/component_images.hpp"
+#include "present/k_charts.hpp"
+#include "present/k_rules.hpp"
 #include "io/atomic_file.hpp"
 
 namespace pcasweep::cli {

@@ -35,11 +35,7 @@ Spread spread_of(const std::vector<double>& values) {
   return s;
 }
 
-bool meets_target(const FileQuality& q, const CoverageTarget& t) {
-  if (!(q.psnr_db >= t.psnr_db)) return false;  // NaN fails
-  if (t.ssim && !(q.ssim >= *t.ssim)) return false;
-  return true;
-}
+bool meets_target(const FileQuality& q, const CoverageTarget& t) { return meets_quality(q.psnr_db, q.ssim, t); }
 
 std::vector<std::size_t> failing_worst_first(const std::vector<FileQuality>& row, const CoverageTarget& t) {
   std::vector<std::size_t> failing;

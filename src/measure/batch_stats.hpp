@@ -8,15 +8,16 @@
 //   spread_of           count, min, 5th percentile, median, mean.
 //   recommend_k         the smallest k (ks ascending) at which at least
 //                       `coverage` of the files meet the target (PSNR ≥ target
-//                       and, if set, SSIM ≥ target); a missing figure (NaN)
+//                       and SSIM ≥ target, each if set); a missing figure (NaN)
 //                       counts as not meeting. The files failing at that k are
 //                       listed worst first: lowest PSNR first, then lowest SSIM.
 #pragma once
 
 #include <cstddef>
 #include <limits>
-#include <optional>
 #include <vector>
+
+#include "measure/quality_target.hpp"
 
 namespace pcasweep {
 
@@ -39,13 +40,12 @@ struct FileQuality {
   double ssim = std::numeric_limits<double>::quiet_NaN();
 };
 
-struct CoverageTarget {
-  double psnr_db = 40.0;
-  std::optional<double> ssim;
+// A quality target (measure/quality_target.hpp) that a share of the files must meet.
+struct CoverageTarget : QualityTarget {
   double coverage = 0.95;  // share of files in (0, 1]
 };
 
-// True when q meets every target that is set.
+// True when q meets every goal of the target that is set (meets_quality).
 bool meets_target(const FileQuality& q, const CoverageTarget& target);
 
 struct KCoverage {

@@ -51,7 +51,7 @@ nlohmann::json basis_json(const BatchResult& r, const std::vector<int>& ks) {
 }
 
 nlohmann::json target_json(const CoverageTarget& t) {
-  return {{"psnr_db", t.psnr_db}, {"ssim", t.ssim ? nlohmann::json(*t.ssim) : nlohmann::json()}, {"coverage", t.coverage}};
+  return {{"psnr_db", t.psnr_db ? nlohmann::json(*t.psnr_db) : nlohmann::json()}, {"ssim", t.ssim ? nlohmann::json(*t.ssim) : nlohmann::json()}, {"coverage", t.coverage}};
 }
 
 nlohmann::json recommendation_json(const BatchFigures& figures) {

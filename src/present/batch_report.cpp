@@ -7,6 +7,8 @@
 #include "core/format.hpp"
 #include "io/png.hpp"
 #include "present/batch_tables.hpp"
+#include "present/k_charts.hpp"
+#include "present/k_rules.hpp"
 #include "report/colormap.hpp"
 #include "report/svg.hpp"
 
@@ -168,7 +170,7 @@ HtmlSection quality_section(const BatchResult& r, const BatchFigures& figures, c
   if (figures.has_ssim)
     sec.charts.push_back({render_svg_chart(quality_chart(figures, false, target.ssim, shared)),
                           "SSIM (Wang et al. 2004) across files at each k."});
-  sec.charts.push_back({render_svg_chart(size_chart(figures, target.psnr_db)),
+  sec.charts.push_back({render_svg_chart(size_chart(figures, target.psnr_db.value_or(NAN))),
                         figures.has_bytes ? "Rate against distortion (codec bytes)."
                                           : "Size (numbers kept, an estimate, not coded bytes) against distortion."});
   sec.tables.push_back(aggregate_table(figures));

@@ -99,7 +99,7 @@ Table failures_table(const BatchResult& result) { return notes_table(result.fail
 Table skipped_table(const BatchResult& result) { return notes_table(result.inputs.skipped); }
 
 std::string target_text(const CoverageTarget& t) {
-  std::string s = "PSNR >= " + fixed(t.psnr_db, 1) + " dB";
+  std::string s = "PSNR >= " + fixed(t.psnr_db.value_or(NAN), 1) + " dB";
   if (t.ssim) s += " and SSIM >= " + fixed(*t.ssim, 3);
   return s;
 }
