@@ -11,6 +11,9 @@
 #include "pipeline/codec_study.hpp"
 #include "pipeline/image_set.hpp"
 #include "present/component_images.hpp"
+#include "present/k_charts.hpp"
+#include "present/k_rules.hpp"
+#include "present/rd_outputs.hpp"
 
 namespace pcasweep::cli {
 

@@ -1,6 +1,8 @@
 #include "codec/dct.hpp"
 
+#include <algorithm>
 #include <cmath>
+#include <numeric>
 #include <numbers>
 
 namespace pcasweep {
@@ -27,6 +29,26 @@ Eigen::MatrixXd patch_dct_basis(int patch_height, int patch_width, int channels)
             basis((Eigen::Index(r) * patch_width + c) * channels + ch, col) = cy(r, u) * cx(c, v);
       }
   return basis;
+}
+
+Eigen::VectorXd dct_coefficient_variances(const Eigen::MatrixXd& scatter, double dof, const Eigen::MatrixXd& columns) {
+  return ((scatter * columns).cwiseProduct(columns)).colwise().sum().transpose().cwiseMax(0.0) / dof;
+}
+
+OrderedDct order_dct_by_variance(const Eigen::MatrixXd& all, const Eigen::VectorXd& variances) {
+  const Eigen::Index m = variances.size();
+  OrderedDct out;
+  out.order.resize(std::size_t(m));
+  std::iota(out.order.begin(), out.order.end(), 0u);
+  std::stable_sort(out.order.begin(), out.order.end(),
+                   [&](std::uint32_t a, std::uint32_t b) { return variances(a) > variances(b); });
+  out.columns.resize(all.rows(), m);
+  out.variances.resize(m);
+  for (Eigen::Index j = 0; j < m; ++j) {
+    out.columns.col(j) = all.col(out.order[std::size_t(j)]);
+    out.variances(j) = variances(out.order[std::size_t(j)]);
+  }
+  return out;
 }
 
 }  // namespace pcasweep

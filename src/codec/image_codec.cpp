@@ -73,17 +73,10 @@ DecoderBasis decoder_basis(const PatchLayout& layout, int bit_depth, const Patch
     fixed_mean(moments.mean);
     const Eigen::MatrixXd all = patch_dct_basis(layout.options().patch_height, layout.options().patch_width,
                                                 layout.planes() == 1 ? layout.channels() : 1);
-    const Eigen::VectorXd power = column_power(moments, b.mean, all, b.total);
-    std::vector<std::uint32_t> order(static_cast<std::size_t>(d));
-    std::iota(order.begin(), order.end(), 0u);
-    std::stable_sort(order.begin(), order.end(), [&](std::uint32_t x, std::uint32_t y) { return power(x) > power(y); });
-    b.columns.resize(d, d);
-    b.power.resize(d);
-    for (Eigen::Index j = 0; j < d; ++j) {
-      b.columns.col(j) = all.col(order[std::size_t(j)]);
-      b.power(j) = power(order[std::size_t(j)]);
-    }
-    b.column_index = order;
+    OrderedDct ordered = order_dct_by_variance(all, column_power(moments, b.mean, all, b.total));
+    b.columns = std::move(ordered.columns);
+    b.power = std::move(ordered.variances);
+    b.column_index = std::move(ordered.order);
     return b;
   }
   if (!choice.basis) throw usage_error("internal: encode without a basis");

@@ -4,11 +4,10 @@
 #include <chrono>
 #include <exception>
 #include <limits>
-#include <cstdio>
-#include <filesystem>
 #include <numeric>
 
-#include "codec/dct.hpp"
+#include "codec/dct_basis.hpp"
+#include "codec/gaussian_rd.hpp"
 #include "codec/quantize.hpp"
 #include "core/error.hpp"
 #include "io/atomic_file.hpp"
@@ -19,39 +18,10 @@
 #include "pipeline/patch_sweep.hpp"
 #include "solve/blocked_operator.hpp"
 #include "solve/scatter_sum.hpp"
-#include "report/svg.hpp"
 
 namespace pcasweep {
 
 namespace {
-
-// The DCT-II basis with columns sorted by the data's coefficient variance, from the
-// accumulated scatter M (d×d, about the mean): variance_j = d_jᵀ·M·d_j/(N−1).
-Basis dct_basis_for(const ScatterSum& sum, const PatchOptions& patch, int channels) {
-  const Eigen::Index n = sum.rows(), d = sum.cols();
-  Basis b;
-  b.mean = sum.mean();
-  const double dof = n > 1 ? double(n - 1) : 1.0;
-  const Eigen::MatrixXd all = patch_dct_basis(patch.patch_height, patch.patch_width,
-                                              patch.colour == ColourMode::joint ? channels : 1);
-  const Eigen::MatrixXd scatter = sum.scatter();
-  const Eigen::VectorXd variance = ((scatter * all).cwiseProduct(all)).colwise().sum().transpose().cwiseMax(0.0) / dof;
-  std::vector<Eigen::Index> order(static_cast<std::size_t>(d));
-  std::iota(order.begin(), order.end(), Eigen::Index(0));
-  std::stable_sort(order.begin(), order.end(), [&](Eigen::Index a, Eigen::Index c) { return variance(a) > variance(c); });
-  b.components.resize(d, d);
-  b.eigenvalues.resize(d);
-  for (Eigen::Index j = 0; j < d; ++j) {
-    b.components.col(j) = all.col(order[std::size_t(j)]);
-    b.eigenvalues(j) = variance(order[std::size_t(j)]);
-  }
-  b.variable_variances = scatter.diagonal() / dof;
-  b.total_variance = b.variable_variances.sum();
-  b.observation_count = n;
-  b.solver = "dct";
-  b.solver_reason = "fixed orthonormal DCT-II basis, columns sorted by the data's coefficient variance";
-  return b;
-}
 
 // One input of fit: read, checked against the first, and its patches' geometry.
 Image read_fit_input(const std::string& path, const ImageStudySettings& settings, SavedBasis& saved, bool first,
@@ -98,7 +68,7 @@ SavedBasis fit_basis(const std::vector<std::string>& inputs, const ImageStudySet
     }
     if (sum.rows() < 2) throw usage_error(inputs[0] + ": only one patch in all inputs; use a smaller --patch");
     if (transform == BasisTransform::dct) {
-      saved.basis = dct_basis_for(sum, settings.patch, saved.channels);
+      saved.basis = dct_basis(sum.mean(), sum.scatter(), sum.rows(), settings.patch, saved.channels);
     } else {
       SolverSettings exact = settings.solver;
       exact.choice = SolverChoice::exact;
@@ -231,42 +201,81 @@ bool brackets(const std::vector<RdPoint>& points, const std::string& method, dou
 
 }  // namespace
 
-std::vector<RdPoint> rate_distortion(const ImageAnalysis& a, const RdSettings& settings, const std::string& jpeg_dir,
-                                     RdCost* cost) {
-  using Clock = std::chrono::steady_clock;
-  const auto seconds_since = [](Clock::time_point t) { return std::chrono::duration<double>(Clock::now() - t).count(); };
-  const Clock::time_point study_start = Clock::now();
-  RdCost spent;
-  const PatchLayout* layout = a.patches();
-  if (!layout || a.sources.size() != 1) {
-    throw usage_error("rate-distortion comparison needs one image cut into patches");
-  }
-  const Image& image = a.image();
-  const std::string& name = a.input();
-  std::vector<RdPoint> points;
+namespace {
 
-  // PCA (own basis, every computed component available) and DCT (all d): one pass for both curves.
-  PatchMoments computed;
-  if (!a.moments) computed = patch_moments(*layout, image);
-  const PatchMoments& moments = a.moments ? *a.moments : computed;
-  BasisChoice pca_choice;
-  pca_choice.basis = &a.basis;
-  BasisChoice dct_choice;
-  dct_choice.kind = BasisKind::dct;
-  const DecoderBasis bases[2] = {decoder_basis(*layout, image.bit_depth, moments, pca_choice, name),
-                                 decoder_basis(*layout, image.bit_depth, moments, dct_choice, name)};
-  const int method_k[2] = {int(a.basis.rank()), int(a.basis.dimension())};
-  const char* method_name[2] = {"pca", "dct"};
-  const auto measure = [&](const std::vector<std::pair<int, int>>& wanted) {  // (method, quality)
+using Clock = std::chrono::steady_clock;
+double seconds_since(Clock::time_point t) { return std::chrono::duration<double>(Clock::now() - t).count(); }
+
+using Wanted = std::vector<std::pair<int, int>>;  // (method: 0 pca, 1 dct; --quality)
+const char* const kCodedMethod[2] = {"pca", "dct"};
+
+// The PCA curve (own basis, every computed component available) and the DCT curve
+// (all d columns): both decoder bases fixed once, their points measured through the
+// codec, every point of a pass in one streaming pass over the image.
+class CodedCurves {
+ public:
+  CodedCurves(const ImageAnalysis& a, int zstd_level)
+      : layout_(*a.patches()), image_(a.image()), name_(a.input()), zstd_level_(zstd_level),
+        k_{int(a.basis.rank()), int(a.basis.dimension())} {
+    PatchMoments computed;
+    if (!a.moments) computed = patch_moments(layout_, image_);
+    const PatchMoments& moments = a.moments ? *a.moments : computed;
+    BasisChoice pca;
+    pca.basis = &a.basis;
+    BasisChoice dct;
+    dct.kind = BasisKind::dct;
+    bases_[0] = decoder_basis(layout_, image_.bit_depth, moments, pca, name_);
+    bases_[1] = decoder_basis(layout_, image_.bit_depth, moments, dct, name_);
+  }
+
+  // For each method, the --quality nearest each target rate, in increasing quality, once each.
+  Wanted first_pass(const RdSettings& settings) const {
+    Wanted wanted;
+    for (int method = 0; method < 2; ++method) {
+      std::vector<int> qs;
+      for (double bpp : settings.target_bits_per_pixel)
+        qs.push_back(quality_for_rate(layout_, image_.bit_depth, bases_[method], k_[method], bpp));
+      std::sort(qs.begin(), qs.end());
+      qs.erase(std::unique(qs.begin(), qs.end()), qs.end());
+      for (int q : qs) wanted.emplace_back(method, q);
+    }
+    return wanted;
+  }
+
+  // For each method, one point 15 qualities beyond its lowest (highest) when a reported
+  // rate lies below (above) the whole measured curve.
+  Wanted refinement(const std::vector<RdPoint>& points, const RdSettings& settings) const {
+    Wanted wanted;
+    for (int method = 0; method < 2; ++method) {
+      const std::string name = kCodedMethod[method];
+      int lowest = 101, highest = 0;
+      for (const auto& p : points)
+        if (p.method == name) lowest = std::min(lowest, p.quality), highest = std::max(highest, p.quality);
+      bool need_low = false, need_high = false;
+      for (double bpp : settings.reported_bits_per_pixel) {
+        if (brackets(points, name, bpp)) continue;
+        bool any_below = false;
+        for (const auto& p : points) any_below = any_below || (p.method == name && p.bits_per_pixel <= bpp);
+        (any_below ? need_high : need_low) = true;
+      }
+      if (need_low && lowest > 1) wanted.emplace_back(method, std::max(1, lowest - 15));
+      if (need_high && highest < 100) wanted.emplace_back(method, std::min(100, highest + 15));
+    }
+    return wanted;
+  }
+
+  // Codes, decodes and measures every wanted point in one pass; appends the points and
+  // the pass's wall time to `cost`.
+  void measure(const Wanted& wanted, std::vector<RdPoint>& points, RdCost& cost) const {
     std::vector<CodingPlan> plans;
-    plans.reserve(wanted.size());
+    plans.reserve(wanted.size());  // the sweep points keep pointers into it
     std::vector<PatchSweepPoint> sweep_points;
     for (const auto& [method, q] : wanted) {
       CodecSettings s;
-      s.k = method_k[method];
+      s.k = k_[method];
       s.quality = q;
-      s.zstd_level = settings.zstd_level;
-      plans.push_back(plan_coding(*layout, image.bit_depth, bases[method], s, name));
+      s.zstd_level = zstd_level_;
+      plans.push_back(plan_coding(layout_, image_.bit_depth, bases_[method], s, name_));
       PatchSweepPoint p;
       p.k = s.k;
       p.plan = &plans.back();
@@ -274,105 +283,95 @@ std::vector<RdPoint> rate_distortion(const ImageAnalysis& a, const RdSettings& s
       sweep_points.push_back(p);
     }
     PatchSweepInputs in;
-    in.image = &image;
-    in.layout = layout;
-    in.decoder_bases = {&bases[0], &bases[1]};
-    in.codec.zstd_level = settings.zstd_level;
-    const Clock::time_point pass_start = Clock::now();
+    in.image = &image_;
+    in.layout = &layout_;
+    in.decoder_bases = {&bases_[0], &bases_[1]};
+    in.codec.zstd_level = zstd_level_;
+    const Clock::time_point start = Clock::now();
     const auto results = run_patch_sweep(in, sweep_points);
-    spent.coded_pass_seconds.push_back(seconds_since(pass_start));
-    spent.coded_pass_points.push_back(int(sweep_points.size()));
+    cost.coded_pass_seconds.push_back(seconds_since(start));
+    cost.coded_pass_points.push_back(int(sweep_points.size()));
     for (std::size_t i = 0; i < wanted.size(); ++i)
-      points.push_back(coded_point(method_name[wanted[i].first], wanted[i].second, results[i], image));
-  };
-  std::vector<std::pair<int, int>> wanted;
-  for (int method = 0; method < 2; ++method) {
-    std::vector<int> qs;
-    for (double bpp : settings.target_bits_per_pixel)
-      qs.push_back(quality_for_rate(*layout, image.bit_depth, bases[method], method_k[method], bpp));
-    std::sort(qs.begin(), qs.end());
-    qs.erase(std::unique(qs.begin(), qs.end()), qs.end());
-    for (int q : qs) wanted.emplace_back(method, q);
+      points.push_back(coded_point(kCodedMethod[wanted[i].first], wanted[i].second, results[i], image_));
   }
-  measure(wanted);
-  // Refine: a reported rate a curve does not reach gets one point beyond its end.
-  wanted.clear();
-  for (int method = 0; method < 2; ++method) {
-    int lowest = 101, highest = 0;
-    for (const auto& p : points)
-      if (p.method == method_name[method]) lowest = std::min(lowest, p.quality), highest = std::max(highest, p.quality);
-    bool need_low = false, need_high = false;
-    for (double bpp : settings.reported_bits_per_pixel) {
-      if (brackets(points, method_name[method], bpp)) continue;
-      bool any_below = false;
-      for (const auto& p : points) any_below = any_below || (p.method == method_name[method] && p.bits_per_pixel <= bpp);
-      (any_below ? need_high : need_low) = true;
-    }
-    if (need_low && lowest > 1) wanted.emplace_back(method, std::max(1, lowest - 15));
-    if (need_high && highest < 100) wanted.emplace_back(method, std::min(100, highest + 15));
-  }
-  if (!wanted.empty()) measure(wanted);
 
-  if (jpeg_supports_channels(image.channels)) {
-    if (!jpeg_dir.empty()) {
-      std::error_code ec;
-      std::filesystem::create_directories(jpeg_dir, ec);
-      if (ec) throw data_error(jpeg_dir + ": cannot create folder: " + ec.message());
-    }
-    const std::vector<int>& qs = settings.jpeg_qualities;
-    std::vector<RdPoint> jpeg(qs.size());
-    std::vector<std::string> files(qs.size());
-    std::exception_ptr failure;
-    const Clock::time_point jpeg_start = Clock::now();
+ private:
+  const PatchLayout& layout_;
+  const Image& image_;
+  const std::string& name_;
+  int zstd_level_;
+  int k_[2];
+  DecoderBasis bases_[2];
+};
+
+// JPEG at every quality of `qs`, in parallel: appends one point each (file left empty)
+// and the encoded bytes, and the wall time to `cost`. Rethrows the first failure.
+void measure_jpeg(const Image& image, const std::string& name, const std::vector<int>& qs,
+                  std::vector<RdPoint>& points, std::vector<RdJpegFile>& files, RdCost& cost) {
+  std::vector<RdPoint> jpeg(qs.size());
+  std::vector<std::string> bytes(qs.size());
+  std::exception_ptr failure;
+  const Clock::time_point start = Clock::now();
 #pragma omp parallel for schedule(dynamic, 1)
-    for (std::ptrdiff_t i = 0; i < std::ptrdiff_t(qs.size()); ++i) {
-      try {
-        jpeg[std::size_t(i)] = jpeg_point(image, qs[std::size_t(i)], name, files[std::size_t(i)]);
-      } catch (...) {
+  for (std::ptrdiff_t i = 0; i < std::ptrdiff_t(qs.size()); ++i) {
+    try {
+      jpeg[std::size_t(i)] = jpeg_point(image, qs[std::size_t(i)], name, bytes[std::size_t(i)]);
+    } catch (...) {
 #pragma omp critical
-        if (!failure) failure = std::current_exception();
-      }
-    }
-    if (failure) std::rethrow_exception(failure);
-    spent.jpeg_seconds = seconds_since(jpeg_start);
-    spent.jpeg_points = int(qs.size());
-    for (std::size_t i = 0; i < qs.size(); ++i) {
-      RdPoint& p = jpeg[i];
-      if (!jpeg_dir.empty()) {
-        const std::string file = output_stem(name) + ".q" + std::to_string(qs[i]) + ".jpg";
-        p.file = std::filesystem::path(jpeg_dir).filename().string() + "/" + file;
-        write_file_atomic((std::filesystem::path(jpeg_dir) / file).string(), files[i]);
-      }
-      points.push_back(std::move(p));
+      if (!failure) failure = std::current_exception();
     }
   }
-  // Gaussian bound from the eigenvalues (components beyond the computed rank: their
-  // variance is charged to distortion, never coded).
-  const Eigen::VectorXd& ev = a.basis.eigenvalues;
-  const double tail = std::max(0.0, a.basis.total_variance - ev.sum());
-  const double top = image.max_value();
-  const double d = double(a.basis.dimension()), n = double(a.observations());
+  if (failure) std::rethrow_exception(failure);
+  cost.jpeg_seconds = seconds_since(start);
+  cost.jpeg_points = int(qs.size());
+  for (std::size_t i = 0; i < qs.size(); ++i) {
+    points.push_back(std::move(jpeg[i]));
+    files.push_back({qs[i], std::move(bytes[i])});
+  }
+}
+
+// The Gaussian bound (codec/gaussian_rd.hpp) from the analysis's eigenvalues, its rate
+// per observation turned into bits per pixel (N·R / (W·H)).
+void add_gaussian_bound(const ImageAnalysis& a, std::vector<RdPoint>& points) {
+  const Image& image = a.image();
+  const double n = double(a.observations());
   const double pixels = double(image.width) * double(image.height);
-  for (int psnr = 10; psnr <= 70; ++psnr) {
-    const double theta = water_level_for_psnr(psnr, top);
-    const double mse = (reverse_water_fill(ev, theta).sum() + tail) / d;
-    const double bits = gaussian_rate_bits(ev, theta);
-    if (bits <= 0.0) continue;
+  for (const GaussianRdPoint& g :
+       gaussian_rd_curve(a.basis.eigenvalues, a.basis.total_variance, a.basis.dimension(), image.max_value())) {
     RdPoint p;
     p.method = "gaussian_bound";
-    p.bits_per_pixel = bits * n / pixels;
-    p.psnr_db = psnr_from_mse(mse, top);
-    for (Eigen::Index i = 0; i < ev.size(); ++i) p.coded += ev(i) > theta ? 1 : 0;
+    p.bits_per_pixel = g.bits_per_observation * n / pixels;
+    p.psnr_db = g.psnr_db;
+    p.coded = g.coded;
     points.push_back(p);
   }
-  // Each curve by increasing rate, curves in the order pca, dct, jpeg, gaussian_bound.
+}
+
+// Each curve by increasing rate, curves in the order pca, dct, jpeg, gaussian_bound.
+void sort_curves(std::vector<RdPoint>& points) {
   const auto rank = [](const std::string& m) { return m == "pca" ? 0 : m == "dct" ? 1 : m == "jpeg" ? 2 : 3; };
   std::stable_sort(points.begin(), points.end(), [&](const RdPoint& x, const RdPoint& y) {
     return rank(x.method) != rank(y.method) ? rank(x.method) < rank(y.method) : x.bits_per_pixel < y.bits_per_pixel;
   });
-  spent.total_seconds = seconds_since(study_start);
-  if (cost) *cost = spent;
-  return points;
+}
+
+}  // namespace
+
+RdStudy rate_distortion(const ImageAnalysis& a, const RdSettings& settings) {
+  const Clock::time_point study_start = Clock::now();
+  if (!a.patches() || a.sources.size() != 1)
+    throw usage_error("rate-distortion comparison needs one image cut into patches");
+  RdStudy study;
+  const CodedCurves coded(a, settings.zstd_level);
+  coded.measure(coded.first_pass(settings), study.points, study.cost);
+  const Wanted more = coded.refinement(study.points, settings);
+  if (!more.empty()) coded.measure(more, study.points, study.cost);
+  if (jpeg_supports_channels(a.image().channels))
+    measure_jpeg(a.image(), a.input(), settings.jpeg_qualities, study.points, study.jpeg_files, study.cost);
+  add_gaussian_bound(a, study.points);
+  sort_curves(study.points);
+  study.cost.total_seconds = seconds_since(study_start);
+  return study;
 }
 
 double psnr_at_rate(const std::vector<RdPoint>& points, const std::string& method, double bpp, int* coded) {
@@ -390,107 +389,6 @@ double psnr_at_rate(const std::vector<RdPoint>& points, const std::string& metho
     }
   }
   return NAN;
-}
-
-Table rd_table(const std::vector<RdPoint>& points) {
-  Table t;
-  t.columns = {"method", "quality", "coded", "bytes", "bits_per_pixel", "psnr_db", "ssim", "file"};
-  for (const auto& p : points) {
-    const bool bound = p.method == "gaussian_bound";
-    t.add_row({p.method, bound ? Cell{} : Cell{std::int64_t(p.quality)},
-               p.method == "jpeg" ? Cell{} : Cell{std::int64_t(p.coded)}, bound ? Cell{} : Cell{p.bytes},
-               p.bits_per_pixel, p.psnr_db, std::isnan(p.ssim) ? Cell{} : Cell{p.ssim},
-               p.file.empty() ? Cell{} : Cell{p.file}});
-  }
-  return t;
-}
-
-std::string rd_sentence(const std::vector<RdPoint>& points, double bpp) {
-  const auto db = [](double v) {
-    if (std::isnan(v)) return std::string("n/a (outside its curve)");
-    char s[32];
-    std::snprintf(s, sizeof s, "%.2f dB", v);
-    return std::string(s);
-  };
-  int coded = 0;
-  const double pca = psnr_at_rate(points, "pca", bpp, &coded);
-  char head[96];
-  std::snprintf(head, sizeof head, "at %.2g bpp (linear interpolation along each measured curve), ", bpp);
-  std::string s = head;
-  s += "PCA (" + (std::isnan(pca) ? std::string("-") : std::to_string(coded)) + " components coded) gives " + db(pca);
-  const bool has_jpeg = std::any_of(points.begin(), points.end(), [](const RdPoint& p) { return p.method == "jpeg"; });
-  if (has_jpeg) s += ", JPEG " + db(psnr_at_rate(points, "jpeg", bpp));
-  s += ", DCT " + db(psnr_at_rate(points, "dct", bpp));
-  s += "; Gaussian R(D) from the eigenvalues " + db(psnr_at_rate(points, "gaussian_bound", bpp));
-  return s;
-}
-
-RdReport write_rate_distortion(const ImageAnalysis& a, const RdSettings& settings, const std::string& out_dir) {
-  std::error_code ec;
-  std::filesystem::create_directories(out_dir, ec);
-  if (ec) throw data_error(out_dir + ": cannot create output folder: " + ec.message());
-  RdReport report;
-  report.points = rate_distortion(a, settings, (std::filesystem::path(out_dir) / "jpeg").string(), &report.cost);
-  report.sentence = rd_sentence(report.points, 1.0);
-  nlohmann::json at = nlohmann::json::object();
-  for (double bpp : {0.5, 1.0, 2.0}) {
-    nlohmann::json row;
-    for (const char* m : {"pca", "jpeg", "dct", "gaussian_bound"}) row[m] = json_real(psnr_at_rate(report.points, m, bpp));
-    at[format_real(bpp, 3)] = row;
-  }
-  report.json = {{"sentence", report.sentence},
-                 {"psnr_db_at_bits_per_pixel", at},
-                 {"note", "PSNR at a rate is linearly interpolated between the two measured points around it; "
-                          "pca and dct are encoded and decoded by pcasweep (own basis at 16-bit precision vs the "
-                          "fixed DCT-II basis, same quantiser and entropy coder), jpeg is libjpeg-turbo's baseline "
-                          "JPEG (4:2:0, optimised Huffman) decoded by libjpeg-turbo, gaussian_bound is R(D) of a Gaussian source with the "
-                          "eigenvalues as variances (no side information)"},
-                 {"cost", {{"note", "wall seconds on this run's machine and threads"},
-                           {"coded_pass_seconds", report.cost.coded_pass_seconds},
-                           {"coded_pass_points", report.cost.coded_pass_points},
-                           {"jpeg_seconds", report.cost.jpeg_seconds},
-                           {"jpeg_points", report.cost.jpeg_points},
-                           {"total_seconds", report.cost.total_seconds}}},
-                 {"points", to_json(rd_table(report.points))}};
-  write_file_atomic((std::filesystem::path(out_dir) / "rd.csv").string(), render_csv(rd_table(report.points)));
-
-  ChartSpec chart;
-  chart.title = "Rate and distortion: " + output_stem(a.input());
-  {
-    char sub[160];
-    std::snprintf(sub, sizeof sub, "at 1 bpp (interpolated): PCA %.2f dB, JPEG %.2f dB, DCT %.2f dB",
-                  psnr_at_rate(report.points, "pca", 1.0), psnr_at_rate(report.points, "jpeg", 1.0),
-                  psnr_at_rate(report.points, "dct", 1.0));
-    chart.subtitle = sub;
-  }
-  chart.x_label = "bits per pixel (file bytes x 8 / pixels)";
-  chart.y_label = "PSNR (dB), measured on the decoded image";
-  const struct { const char* method; const char* label; MarkerShape marker; const char* dash; } curves[] = {
-      {"pca", "PCA, own basis (pcasweep codec)", MarkerShape::circle, ""},
-      {"dct", "DCT-II 8x8-style basis, same quantiser and coder", MarkerShape::square, ""},
-      {"jpeg", "JPEG (libjpeg-turbo, 4:2:0)", MarkerShape::triangle, ""},
-      {"gaussian_bound", "Gaussian R(D) from the eigenvalues (reference; real patches can beat it)",
-       MarkerShape::none, "6 4"}};
-  double x_max = 0.0;
-  for (const auto& c : curves) {
-    ChartSeries series;
-    series.name = c.label;
-    series.style.marker = c.marker;
-    series.style.dash = c.dash;
-    for (const auto& p : report.points)
-      if (p.method == c.method && std::isfinite(p.psnr_db)) {
-        series.x.push_back(p.bits_per_pixel);
-        series.y.push_back(p.psnr_db);
-        if (p.method != "gaussian_bound") x_max = std::max(x_max, p.bits_per_pixel);
-      }
-    if (!series.x.empty()) chart.series.push_back(std::move(series));
-  }
-  chart.x_min = 0.0;
-  chart.x_max = x_max > 0.0 ? x_max * 1.05 : NAN;
-  chart.lines.push_back({true, 1.0, "1 bpp"});
-  chart.note = "Every codec point is a real file, decoded before measuring; R(D) ignores side information.";
-  write_file_atomic((std::filesystem::path(out_dir) / "rd.svg").string(), render_svg_chart(chart));
-  return report;
 }
 
 }  // namespace pcasweep

@@ -1,20 +1,19 @@
 // pcasweep/pipeline/codec_study.hpp — wires the codec for the fit/encode/decode
-// subcommands and the rate–distortion comparison written by `sweep`.
+// subcommands and runs the rate–distortion comparison of `sweep`.
 //
-// Contract: nothing here computes on its own; it reads files, calls
-// observe/solve/codec/measure and lays the numbers out as tables. Every check
-// on the inputs happens before an output file is created.
+// Contract: nothing here computes on its own; it reads files and calls
+// observe/solve/codec/measure (the DCT basis and the Gaussian R(D) curve live
+// in codec/), and returns typed results. It writes no file: the study's
+// outputs (rd.csv, rd.svg, jpeg/) are written by present/rd_outputs.hpp.
 #pragma once
 
 #include <cmath>
-#include <nlohmann/json.hpp>
 #include <string>
 #include <vector>
 
 #include "codec/basis_file.hpp"
 #include "codec/image_codec.hpp"
 #include "pipeline/image_study.hpp"
-#include "report/table.hpp"
 
 namespace pcasweep {
 
@@ -74,38 +73,32 @@ struct RdCost {
   double total_seconds = 0.0;              // the whole study, bound and sorting included
 };
 
+// One JPEG file the study encoded (and measured), kept for the presentation stage to write.
+struct RdJpegFile {
+  int quality = 0;    // JPEG quality, as in its RdPoint
+  std::string bytes;  // the whole file
+};
+
+// What rate_distortion() returns.
+struct RdStudy {
+  std::vector<RdPoint> points;         // each curve by increasing bits per pixel, curves pca, dct, jpeg, bound
+  RdCost cost;                         // what the study took
+  std::vector<RdJpegFile> jpeg_files;  // one per JPEG quality (none when JPEG cannot hold the channels)
+};
+
 // For analysis with one image and the patches layout: PCA (own basis, k = r) and DCT
 // (k = d) through the codec at the qualities above — every point of both curves in one
 // streaming pass over the image (pipeline/patch_sweep.hpp) — JPEG (libjpeg-turbo, 4:2:0,
 // optimised Huffman) at each JPEG quality, encoded and decoded row by row, in parallel
-// (written under jpeg_dir/<stem>.q<Q>.jpg when jpeg_dir is not empty, else only sized),
-// and the Gaussian bound R(D) = Σ ½log2(λ_i/D_i) per observation from the eigenvalues, in
-// bits per pixel (N·R / (W·H)). Returns the points, each curve by increasing bits per pixel;
-// `cost` (if given) receives what the study took.
-std::vector<RdPoint> rate_distortion(const ImageAnalysis& analysis, const RdSettings& settings,
-                                     const std::string& jpeg_dir, RdCost* cost = nullptr);
+// (the files kept in memory, RdPoint::file left empty), and the Gaussian bound
+// R(D) = Σ ½log2(λ_i/D_i) per observation from the eigenvalues (codec/gaussian_rd.hpp),
+// in bits per pixel (N·R / (W·H)). Returns the points, each curve by increasing bits
+// per pixel, the JPEG files and what the study took. Writes nothing. Throws Error(usage)
+// for another layout or several images, Error(data) when a coder fails.
+RdStudy rate_distortion(const ImageAnalysis& analysis, const RdSettings& settings);
 
 // PSNR of `method` at `bpp`, linearly interpolated between the two measured points that
 // bracket it (NaN outside the curve). `coded` receives the components of the nearer point.
 double psnr_at_rate(const std::vector<RdPoint>& points, const std::string& method, double bpp, int* coded = nullptr);
-
-// Columns method, quality, coded, bytes, bits_per_pixel, psnr_db, ssim, file.
-Table rd_table(const std::vector<RdPoint>& points);
-
-// "at 1 bpp (linear interpolation along each measured curve), PCA (12 components coded) gives 35.1 dB, JPEG 34.0 dB, DCT 34.5 dB;
-// Gaussian R(D) from the eigenvalues 38.2 dB".
-std::string rd_sentence(const std::vector<RdPoint>& points, double bpp);
-
-// What write_rate_distortion() produced.
-struct RdReport {
-  std::vector<RdPoint> points;
-  std::string sentence;   // rd_sentence at 1.0 bpp
-  RdCost cost;            // what the study took
-  nlohmann::json json;    // {"sentence", "psnr_db_at_bits_per_pixel": {...}, "cost": {...}, "points": [...]}, for summary.json
-};
-
-// Runs rate_distortion() and writes into out_dir (created if missing): jpeg/<stem>.q<Q>.jpg,
-// rd.csv (rd_table) and rd.svg (PSNR against bits per pixel, one curve per method).
-RdReport write_rate_distortion(const ImageAnalysis& analysis, const RdSettings& settings, const std::string& out_dir);
 
 }  // namespace pcasweep
