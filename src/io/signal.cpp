@@ -266,28 +266,71 @@ bool parse_number(std::string_view cell, double& value, bool& integer) {
   return true;
 }
 
-Signal read_csv(const std::string& bytes, const std::string& path, const SignalReadOptions& options) {
-  // Lines, with their 1-based line numbers; "\r\n" and "\n" both end a line.
-  std::vector<std::pair<std::size_t, std::string_view>> lines;
-  {
-    std::string_view all(bytes);
-    std::size_t start = 0, number = 0;
-    while (start < all.size()) {
-      std::size_t end = all.find('\n', start);
-      if (end == std::string_view::npos) end = all.size();
-      std::string_view line = all.substr(start, end - start);
-      if (!line.empty() && line.back() == '\r') line.remove_suffix(1);
-      lines.push_back({++number, line});
-      start = end + 1;
-    }
-    while (!lines.empty() && trim(lines.back().second).empty()) lines.pop_back();  // trailing blank lines
+using NumberedLines = std::vector<std::pair<std::size_t, std::string_view>>;
+
+// The file's lines with their 1-based numbers ("\r\n" and "\n" both end a
+// line), trailing blank lines dropped.
+NumberedLines numbered_lines(std::string_view all) {
+  NumberedLines lines;
+  std::size_t start = 0, number = 0;
+  while (start < all.size()) {
+    std::size_t end = all.find('\n', start);
+    if (end == std::string_view::npos) end = all.size();
+    std::string_view line = all.substr(start, end - start);
+    if (!line.empty() && line.back() == '\r') line.remove_suffix(1);
+    lines.push_back({++number, line});
+    start = end + 1;
   }
+  while (!lines.empty() && trim(lines.back().second).empty()) lines.pop_back();
+  return lines;
+}
+
+// The first of ',', tab and ';' that the first line holds (',' when none).
+char detect_delimiter(std::string_view first) {
+  return first.find(',') != std::string_view::npos    ? ','
+         : first.find('\t') != std::string_view::npos ? '\t'
+         : first.find(';') != std::string_view::npos  ? ';'
+                                                      : ',';
+}
+
+// The indices of the columns --columns asks for (names or 1-based indices),
+// all columns when it is empty. Throws Error(usage) naming the file's columns.
+std::vector<std::size_t> columns_to_keep(const std::vector<std::string>& names, const SignalReadOptions& options,
+                                         const std::string& path) {
+  const std::size_t width = names.size();
+  std::vector<std::size_t> keep;
+  if (options.columns.empty()) {
+    for (std::size_t j = 0; j < width; ++j) keep.push_back(j);
+    return keep;
+  }
+  std::set<std::size_t> seen;
+  for (const auto& wanted : options.columns) {
+    std::size_t index = width;
+    const auto by_name = std::find(names.begin(), names.end(), wanted);
+    if (by_name != names.end()) {
+      index = std::size_t(by_name - names.begin());
+    } else {
+      std::size_t v = 0;
+      auto [ptr, ec] = std::from_chars(wanted.data(), wanted.data() + wanted.size(), v);
+      if (ec == std::errc() && ptr == wanted.data() + wanted.size() && v >= 1 && v <= width) index = v - 1;
+    }
+    if (index >= width) {
+      std::string list;
+      for (const auto& n : names) list += (list.empty() ? "" : ", ") + n;
+      throw usage_error(path + ": --columns: no column '" + wanted + "' (the file has " + std::to_string(width) +
+                        " column(s): " + list + "; give names or 1-based indices)");
+    }
+    if (!seen.insert(index).second) throw usage_error(path + ": --columns names column '" + names[index] + "' twice");
+    keep.push_back(index);
+  }
+  return keep;
+}
+
+Signal read_csv(const std::string& bytes, const std::string& path, const SignalReadOptions& options) {
+  const NumberedLines lines = numbered_lines(bytes);
   if (lines.empty()) throw data_error(path + ": no rows (the file is blank)");
   const std::string_view first = lines.front().second;
-  const char delimiter = first.find(',') != std::string_view::npos    ? ','
-                         : first.find('\t') != std::string_view::npos ? '\t'
-                         : first.find(';') != std::string_view::npos  ? ';'
-                                                                      : ',';
+  const char delimiter = detect_delimiter(first);
   const auto head = split(first, delimiter);
   const std::size_t width = head.size();
   // The first row is a header when any of its cells is not a number.
@@ -302,32 +345,7 @@ Signal read_csv(const std::string& bytes, const std::string& path, const SignalR
     std::string name = header ? std::string(head[j]) : std::string();
     names.push_back(name.empty() ? "col" + std::to_string(j + 1) : name);
   }
-  // Which columns to keep.
-  std::vector<std::size_t> keep;
-  if (options.columns.empty()) {
-    for (std::size_t j = 0; j < width; ++j) keep.push_back(j);
-  } else {
-    std::set<std::size_t> seen;
-    for (const auto& wanted : options.columns) {
-      std::size_t index = width;
-      const auto by_name = std::find(names.begin(), names.end(), wanted);
-      if (by_name != names.end()) {
-        index = std::size_t(by_name - names.begin());
-      } else {
-        std::size_t v = 0;
-        auto [ptr, ec] = std::from_chars(wanted.data(), wanted.data() + wanted.size(), v);
-        if (ec == std::errc() && ptr == wanted.data() + wanted.size() && v >= 1 && v <= width) index = v - 1;
-      }
-      if (index >= width) {
-        std::string list;
-        for (const auto& n : names) list += (list.empty() ? "" : ", ") + n;
-        throw usage_error(path + ": --columns: no column '" + wanted + "' (the file has " + std::to_string(width) +
-                          " column(s): " + list + "; give names or 1-based indices)");
-      }
-      if (!seen.insert(index).second) throw usage_error(path + ": --columns names column '" + names[index] + "' twice");
-      keep.push_back(index);
-    }
-  }
+  const std::vector<std::size_t> keep = columns_to_keep(names, options, path);
   const std::size_t first_data = header ? 1 : 0;
   const std::size_t frames = lines.size() - first_data;
   if (frames == 0) throw data_error(path + ": a header row but no data rows");
