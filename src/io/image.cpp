@@ -212,6 +212,85 @@ MinimumSize stb_minimum_size(const std::string& file, std::uint64_t w, std::uint
   return {pixels * pixel_bytes, "the raster size of uncompressed TGA"};
 }
 
+// BMP and TGA carry no checksum, and stb_image fills the rows a short file
+// lacks. These two checks make sure the file holds every byte its header
+// promises before it is decoded; a short file is an error naming the file.
+
+// Uncompressed BMP (the only kind stb_image reads): the raster starts at
+// bfOffBits (byte 10) and holds |height| rows of ceil(width·bpp/32)·4 bytes
+// (Microsoft BITMAPFILEHEADER / BITMAPINFOHEADER documentation).
+void check_complete_bmp(const std::string& file, const std::string& name, std::uint64_t w, std::uint64_t h) {
+  const auto* b = reinterpret_cast<const unsigned char*>(file.data());
+  const std::size_t n = file.size();
+  if (n < 30) throw data_error(name + ": truncated BMP: the file ends inside its header");
+  auto le16 = [&](std::size_t at) { return unsigned(b[at]) | (unsigned(b[at + 1]) << 8); };
+  auto le32 = [&](std::size_t at) { return std::uint32_t(le16(at)) | (std::uint32_t(le16(at + 2)) << 16); };
+  const std::uint64_t offset = le32(10), header = le32(14);
+  const std::uint64_t bpp = header == 12 ? le16(24) : le16(28);
+  const std::uint64_t row_bytes = (w * std::max<std::uint64_t>(bpp, 1) + 31) / 32 * 4;
+  const std::uint64_t needed = offset + h * row_bytes;
+  if (needed > n)
+    throw data_error(name + ": truncated BMP: the header promises " + std::to_string(h * row_bytes) +
+                     " bytes of raster from byte " + std::to_string(offset) + ", the file holds " + std::to_string(n) +
+                     " bytes in all");
+}
+
+// TGA (Truevision TGA 2.0): the pixel data follow the 18-byte header, the
+// image ID (byte 0 holds its length) and the colour map (present when byte 1
+// is 1: byte 5 holds its entries, byte 7 their bits). Uncompressed types
+// (1, 2, 3) hold width·height pixels of ceil(bits/8) bytes; the RLE types (9,
+// 10, 11) are walked packet by packet until every pixel is covered.
+void check_complete_tga(const std::string& file, const std::string& name, std::uint64_t w, std::uint64_t h) {
+  const auto* b = reinterpret_cast<const unsigned char*>(file.data());
+  const std::size_t n = file.size();
+  if (n < 18) throw data_error(name + ": truncated TGA: the file ends inside its header");
+  const unsigned type = b[2], bits = b[16];
+  const std::uint64_t map_entries = b[1] == 1 ? (unsigned(b[5]) | (unsigned(b[6]) << 8)) : 0;
+  const std::uint64_t map_bytes = map_entries * ((unsigned(b[7]) + 7) / 8);
+  const std::uint64_t start = 18 + std::uint64_t(b[0]) + map_bytes;
+  const std::uint64_t pixel_bytes = std::max(1u, (bits + 7) / 8), pixels = w * h;
+  const std::string truncated = name + ": truncated TGA: ";
+  if (type == 9 || type == 10 || type == 11) {
+    std::uint64_t pos = start, covered = 0;
+    while (covered < pixels) {
+      if (pos >= n)
+        throw data_error(truncated + "its run-length packets end after " + std::to_string(covered) + " of " +
+                         std::to_string(pixels) + " pixels");
+      const unsigned packet = b[pos++];
+      const std::uint64_t count = (packet & 0x7F) + 1;
+      pos += packet & 0x80 ? pixel_bytes : count * pixel_bytes;
+      if (pos > n)
+        throw data_error(truncated + "a run-length packet runs past the end of the file after " +
+                         std::to_string(covered) + " of " + std::to_string(pixels) + " pixels");
+      covered += count;
+    }
+    return;
+  }
+  if (start + pixels * pixel_bytes > n)
+    throw data_error(truncated + "the header promises " + std::to_string(pixels * pixel_bytes) +
+                     " bytes of pixels from byte " + std::to_string(start) + ", the file holds " + std::to_string(n) +
+                     " bytes in all");
+}
+
+// The name of the format stb_image will decode `file` as, for messages: "JPEG", "BMP", "TGA" or "image".
+std::string stb_format_name(const std::string& file) {
+  const auto* b = reinterpret_cast<const unsigned char*>(file.data());
+  const std::size_t n = file.size();
+  if (n >= 2 && b[0] == 0xFF && b[1] == 0xD8) return "JPEG";
+  if (n >= 2 && b[0] == 'B' && b[1] == 'M') return "BMP";
+  const bool other = (n >= 4 && (std::memcmp(b, "GIF8", 4) == 0 || std::memcmp(b, "8BPS", 4) == 0)) ||
+                     (n >= 2 && b[0] == '#' && b[1] == '?') ||
+                     (n >= 4 && b[0] == 0x53 && b[1] == 0x80 && b[2] == 0xF6 && b[3] == 0x34);
+  return other ? "image" : "TGA";  // TGA: what stb_image identifies by elimination
+}
+
+// Calls the completeness check of BMP or TGA (other stb formats check themselves).
+void check_complete_raster(const std::string& file, const std::string& name, std::uint64_t w, std::uint64_t h) {
+  const std::string kind = stb_format_name(file);
+  if (kind == "BMP") check_complete_bmp(file, name, w, h);
+  if (kind == "TGA") check_complete_tga(file, name, w, h);
+}
+
 }  // namespace
 
 Image decode_image(const std::string& bytes, const std::string& name, const ImageReadOptions& options) {
@@ -236,13 +315,19 @@ Image decode_image(const std::string& bytes, const std::string& name, const Imag
   if (std::size_t(w) * std::size_t(h) * std::size_t(c) > kMaxImageSamples) {
     throw data_error(name + ": image too large (" + std::to_string(w) + "x" + std::to_string(h) + ")");
   }
+  check_complete_raster(bytes, name, std::uint64_t(w), std::uint64_t(h));
   const bool sixteen = stbi_is_16_bit_from_memory(data, len) != 0;
   Image image;
   void* pixels = sixteen ? static_cast<void*>(stbi_load_16_from_memory(data, len, &w, &h, &c, 0))
                          : static_cast<void*>(stbi_load_from_memory(data, len, &w, &h, &c, 0));
   if (!pixels) {
-    throw data_error(name + ": corrupt image (" +
-                     std::string(stbi_failure_reason() ? stbi_failure_reason() : "decode failed") + ")");
+    // stb_image's reason is the last one any of its format tests set: after a
+    // damaged JPEG it can be the PNG test's "bad png sig". Only a reason that
+    // does not name another format is passed on.
+    const std::string kind = stb_format_name(bytes);
+    std::string reason = stbi_failure_reason() ? stbi_failure_reason() : "";
+    if (reason.find("png") != std::string::npos || reason.empty()) reason = "decoding stopped";
+    throw data_error(name + ": corrupt or truncated " + kind + " (" + reason + ")");
   }
   image.width = w;
   image.height = h;
