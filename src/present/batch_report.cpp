@@ -7,6 +7,7 @@
 #include "core/format.hpp"
 #include "io/png.hpp"
 #include "present/batch_tables.hpp"
+#include "present/component_images.hpp"
 #include "present/k_charts.hpp"
 #include "present/k_rules.hpp"
 #include "report/colormap.hpp"
@@ -216,20 +217,9 @@ HtmlSection spectrum_section(const SpectrumVisuals& sp, bool shared) {
   return sec;
 }
 
-// Component j of a patch basis as a small image: 127.5 + 127·v/max|v| per sample.
-Image component_image(const Basis& b, int j, const PatchOptions& p, int channels) {
-  const bool joint = p.colour == ColourMode::joint;
-  const int c_in = joint ? channels : 1;
-  const int c_out = c_in >= 3 ? 3 : 1;
-  Image img = make_image(p.patch_width, p.patch_height, c_out, 8);
-  const Eigen::VectorXd v = b.components.col(j);
-  const double scale = std::max(v.cwiseAbs().maxCoeff(), 1e-300);
-  for (int cell = 0; cell < img.width * img.height; ++cell)
-    for (int ch = 0; ch < c_out; ++ch) {
-      const double x = v(Eigen::Index(cell) * c_in + ch);
-      img.samples[std::size_t(cell) * c_out + ch] = std::uint16_t(std::lround(127.5 + 127.0 * x / scale));
-    }
-  return img;
+// The shape of one patch observation: patch width × height × (channels when joint colour, else 1).
+Layout::ObservationShape patch_shape(const PatchOptions& p, int channels) {
+  return {p.patch_width, p.patch_height, p.colour == ColourMode::joint ? channels : 1};
 }
 
 // The first (at most 16) components of the spectrum's basis, as patches.
@@ -237,7 +227,7 @@ void add_components(HtmlReport& h, const SpectrumVisuals& sp, bool shared) {
   const PatchOptions& po = sp.patch;
   const int shown = int(std::min<Eigen::Index>(16, sp.basis.rank()));
   for (int j = 0; j < shown; ++j)
-    h.components.push_back({encode_png(component_image(sp.basis, j, po, sp.channels)),
+    h.components.push_back({encode_png(component_image(sp.basis.components.col(j), patch_shape(po, sp.channels), 1)),
                             "Component " + std::to_string(j + 1) + " as a " + std::to_string(po.patch_height) + "×" +
                                 std::to_string(po.patch_width) + " patch",
                             "#" + std::to_string(j + 1) + ", " +
