@@ -185,43 +185,45 @@ int mode_solve(const Args& a) {
   s.seed = std::stoull(a.get("seed", "1"));
   s.tolerance = std::stod(a.get("tol", "0"));
   const int repeat = std::stoi(a.get("repeat", "5"));
-  Basis basis;
+  Solution solution;
   double unit_roundoff = kDoubleRoundoff;
   const auto times = time_runs(repeat, [&] {
     if (single) {
       SingleOperator op(xf);
-      basis = solve(op, s);
+      solution = solve(op, s);
       unit_roundoff = op.unit_roundoff();
     } else {
       DenseOperator op(X);
-      basis = solve(op, s);
+      solution = solve(op, s);
     }
   });
+  const Basis& basis = solution.basis;
+  const SolveReport& report = solution.report;
   if (a.named.count("components")) write_npy(a.named.at("components"), basis.components.leftCols(s.rank));
   nlohmann::json j = environment();
-  const double l = double(basis.sample_size);
+  const double l = double(report.sample_size);
   j["mode"] = "solve";
   j["rows"] = rows;
   j["cols"] = cols;
   j["precision"] = single ? "single" : "double";
   j["k"] = s.rank;
-  j["solver"] = basis.solver;
-  j["reason"] = basis.solver_reason;
+  j["solver"] = report.solver;
+  j["reason"] = report.reason;
   j["seconds"] = times;
   j["seconds_median"] = median(times);
-  j["passes"] = basis.passes;
-  j["sample_size"] = basis.sample_size;
-  j["converged"] = basis.converged;
+  j["passes"] = report.passes;
+  j["sample_size"] = report.sample_size;
+  j["converged"] = report.converged;
   // Whether float32 rounding leaves the rank-k error near optimal; solve(X)
   // (the CLI) would re-solve in double when it does not.
   j["precision_suffices"] = precision_suffices(basis, unit_roundoff);
-  j["last_relative_change"] = basis.last_relative_change;
-  j["product_flops"] = basis.solver == "randomized" ? basis.passes * 2.0 * double(rows) * double(cols) * l
+  j["last_relative_change"] = report.last_relative_change;
+  j["product_flops"] = report.solver == "randomized" ? report.passes * 2.0 * double(rows) * double(cols) * l
                                                     : double(rows) * double(cols) * double(cols);
   j["eigenvalues"] = std::vector<double>(basis.eigenvalues.data(), basis.eigenvalues.data() + basis.eigenvalues.size());
   j["total_variance"] = basis.total_variance;
-  j["subspace_residual"] = basis.subspace_residual;
-  j["optimality_gap_estimate"] = std::isfinite(basis.optimality_gap_estimate) ? nlohmann::json(basis.optimality_gap_estimate) : nlohmann::json();
+  j["subspace_residual"] = report.subspace_residual;
+  j["optimality_gap_estimate"] = std::isfinite(report.optimality_gap_estimate) ? nlohmann::json(report.optimality_gap_estimate) : nlohmann::json();
   j["peak_rss_kb"] = peak_rss_kb();
   std::cout << j.dump() << std::endl;
   return 0;
@@ -297,7 +299,7 @@ int mode_crossover(const Args& a) {
       sr.choice = SolverChoice::randomized;
       sr.rank = k;
       const auto te = time_runs(repeat, [&] { solve(op, se); });
-      Basis b;
+      Solution b;
       const auto tr = time_runs(repeat, [&] { b = solve(op, sr); });
       const CostEstimate c = estimate_costs(n, d, k, 10);
       nlohmann::json j = environment();
@@ -307,7 +309,7 @@ int mode_crossover(const Args& a) {
       j["k"] = k;
       j["exact_seconds"] = median(te);
       j["randomized_seconds"] = median(tr);
-      j["randomized_passes"] = b.passes;
+      j["randomized_passes"] = b.report.passes;
       j["predicted_exact_seconds"] = c.exact_seconds;
       j["predicted_randomized_seconds"] = c.randomized_seconds;
       std::cout << j.dump() << std::endl;

@@ -44,7 +44,7 @@ Action setup_fit(CLI::App& sub) {
       std::cout << "learned a " << args->transform << " basis from " << args->inputs.size() << " image(s): "
                 << saved.patch.patch_height << "x" << saved.patch.patch_width << " patches, " << saved.channels
                 << " channel(s), " << saved.bit_depth << "-bit; N = " << b.observation_count
-                << ", d = " << b.dimension() << ", r = " << b.rank() << " (" << b.solver << ")"
+                << ", d = " << b.dimension() << ", r = " << b.rank() << " (" << saved.report.solver << ")"
                 << "; computed components hold " << kept * 100.0 << " % of the variance\n"
                 << "wrote " << args->out << " (" << bytes.size() << " bytes, SHA-256 " << to_hex(sha256_of(bytes))
                 << ")\n";

@@ -154,7 +154,7 @@ int run_signal_spectrum(const std::string& input, int top, const SignalStudySett
   const double sum = a.basis.eigenvalues.sum();
   const double trace = a.basis.total_variance;
   const double rel = trace > 0 ? std::abs(sum - trace) / trace : std::abs(sum - trace);
-  std::cout << describe_analysis(a) << "; solver: " << a.basis.solver << " (" << a.basis.solver_reason << ")\n"
+  std::cout << describe_analysis(a) << "; solver: " << a.solve_report.solver << " (" << a.solve_report.reason << ")\n"
             << "eigenvalues are variances of the sample covariance (divide by N-1), in sample units squared\n"
             << render_console(table, 6) << "total variance (trace of the covariance) = " << format_real(trace)
             << "\nsum of eigenvalues                      = " << format_real(sum)

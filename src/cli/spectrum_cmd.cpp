@@ -56,7 +56,7 @@ Action setup_spectrum(CLI::App& sub) {
     std::cout << args->input << (paths.size() > 1 ? " and " + std::to_string(paths.size() - 1) + " more" : "")
               << ": " << a.layout->describe() << "; N = " << a.observations() << " observations, d = " << a.dimension()
               << " variables\n"
-              << solver_lines(a.basis) << "eigenvalues are variances of the sample covariance (divide by N-1), in sample units squared\n"
+              << solver_lines(a.basis, a.solve_report) << "eigenvalues are variances of the sample covariance (divide by N-1), in sample units squared\n"
               << render_console(table, 6) << "total variance (trace of the covariance) = " << format_real(trace);
     if (a.basis.complete()) {
       std::cout << "\nsum of eigenvalues                      = " << format_real(sum)

@@ -108,7 +108,7 @@ Action setup_sweep(CLI::App& sub) {
                 << analysis.image().channels << " channel(s), " << analysis.image().bit_depth << "-bit"
                 << (analysis.alpha_dropped ? ", alpha dropped" : "") << "; " << analysis.layout->describe()
                 << "; N = " << analysis.observations() << ", d = " << analysis.dimension() << "\n"
-                << solver_lines(analysis.basis)
+                << solver_lines(analysis.basis, analysis.solve_report)
                 << render_console(sweep_table(rows, {}), 4)
                 << (args->no_codec || !codable
                         ? std::string("(stored_values_estimate and ratio_estimate count numbers kept, not bytes; "

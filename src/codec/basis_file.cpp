@@ -115,8 +115,8 @@ SavedBasis read_basis_file(std::string_view bytes, const std::string& name) {
   }
   b.total_variance = total;
   b.observation_count = Eigen::Index(n);
-  b.solver = transform == 0 ? "loaded" : "dct";
-  b.solver_reason = "read from " + name;
+  s.report.solver = transform == 0 ? "loaded" : "dct";
+  s.report.reason = "read from " + name;
   return s;
 }
 

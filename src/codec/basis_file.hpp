@@ -13,7 +13,7 @@
 
 #include "codec/container.hpp"
 #include "observe/patches.hpp"
-#include "solve/basis.hpp"
+#include "solve/solve_report.hpp"
 
 namespace pcasweep {
 
@@ -25,6 +25,7 @@ struct SavedBasis {
   int bit_depth = 8;
   BasisTransform transform = BasisTransform::pca;
   Basis basis;             // mean d, components d×r, eigenvalues r, total_variance, observation_count
+  SolveReport report;      // how it was made ("loaded" or "dct" when read from a file); not stored in the file
 };
 
 inline constexpr char kBasisFileMagic[4] = {'P', 'S', 'B', 'F'};

@@ -17,8 +17,6 @@ Basis dct_basis(const Eigen::VectorXd& mean, const Eigen::MatrixXd& scatter, Eig
   b.variable_variances = scatter.diagonal() / dof;
   b.total_variance = b.variable_variances.sum();
   b.observation_count = observations;
-  b.solver = "dct";
-  b.solver_reason = "fixed orthonormal DCT-II basis, columns sorted by the data's coefficient variance";
   return b;
 }
 

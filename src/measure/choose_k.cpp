@@ -18,9 +18,10 @@ std::string fmt(double v, int digits = 3) { return format_real(v, digits); }
 
 std::string percent_text(double fraction) { return format_percent(fraction, 4); }
 
+// Only the randomized solver returns r < d eigenvalues (the exact one gives all d).
 std::string truncated_note(const Basis& b) {
   return "only " + std::to_string(b.rank()) + " of " + std::to_string(b.dimension()) +
-         " eigenvalues were computed (" + b.solver + " solver)";
+         " eigenvalues were computed (randomized solver)";
 }
 
 }  // namespace

@@ -65,6 +65,7 @@ ImageAnalysis observe_on_shared(const std::string& path, const ImageStudySetting
   ImageAnalysis a = observe_file(path, settings);
   check_against_shared(a, shared, path);
   a.basis = shared.basis;
+  a.solve_report = shared.solve_report;
   return a;
 }
 
@@ -239,8 +240,10 @@ SharedBasisInfo train_shared_basis(const BatchSettings& settings, BatchResult& r
   }
   if (!sum || sum->rows() < 2) throw data_error("shared basis: no readable training file with at least 2 patches");
   shared.observations = sum->rows();
-  shared.basis = solve_exact(*sum);
-  shared.basis.solver_reason = "shared basis: exact solver on the scatter accumulated over " +
+  Solution solved = solve_exact(*sum);
+  shared.basis = std::move(solved.basis);
+  shared.solve_report = std::move(solved.report);
+  shared.solve_report.reason = "shared basis: exact solver on the scatter accumulated over " +
                                std::to_string(sum->blocks()) + " training file(s)";
   return shared;
 }

@@ -78,6 +78,7 @@ struct SharedBasisInfo {
   std::int64_t observations = 0, dimension = 0;
   int bit_depth = 0;                        // of the training files; every file must match
   Basis basis;
+  SolveReport solve_report;  // the exact solver over the accumulated scatter, and why
 };
 
 struct BatchResult {

@@ -69,14 +69,18 @@ SavedBasis fit_basis(const std::vector<std::string>& inputs, const ImageStudySet
     if (sum.rows() < 2) throw usage_error(inputs[0] + ": only one patch in all inputs; use a smaller --patch");
     if (transform == BasisTransform::dct) {
       saved.basis = dct_basis(sum.mean(), sum.scatter(), sum.rows(), settings.patch, saved.channels);
+      saved.report.solver = "dct";
+      saved.report.reason = "fixed orthonormal DCT-II basis, columns sorted by the data's coefficient variance";
     } else {
       SolverSettings exact = settings.solver;
       exact.choice = SolverChoice::exact;
-      saved.basis = solve(sum, nullptr, 1.0, exact);
+      Solution solved = solve(sum, nullptr, 1.0, exact);
+      saved.basis = std::move(solved.basis);
+      saved.report = std::move(solved.report);
       if (settings.solver.choice == SolverChoice::automatic)
-        saved.basis.solver_reason = "d = " + std::to_string(d) + " <= " + std::to_string(kAlwaysExactDimension) +
-                                    ": the exact solver on the scatter accumulated over " +
-                                    std::to_string(sum.blocks()) + " file(s)";
+        saved.report.reason = "d = " + std::to_string(d) + " <= " + std::to_string(kAlwaysExactDimension) +
+                              ": the exact solver on the scatter accumulated over " +
+                              std::to_string(sum.blocks()) + " file(s)";
     }
     return saved;
   }
@@ -96,7 +100,9 @@ SavedBasis fit_basis(const std::vector<std::string>& inputs, const ImageStudySet
     at += p.rows();
   }
   parts.clear();
-  saved.basis = solve(X, settings.solver);
+  Solution solved = solve(X, settings.solver);
+  saved.basis = std::move(solved.basis);
+  saved.report = std::move(solved.report);
   return saved;
 }
 

@@ -68,7 +68,7 @@ void check_ks_against(const std::vector<int>& ks, const ImageAnalysis& a) {
     }
     if (k > a.basis.rank()) {
       throw usage_error("--k: k = " + std::to_string(k) + " is more than the " + std::to_string(a.basis.rank()) +
-                        " components the " + a.basis.solver + " solver computed; raise --rank");
+                        " components the " + a.solve_report.solver + " solver computed; raise --rank");
     }
   }
 }
@@ -82,28 +82,28 @@ namespace {
 nlohmann::json finite_or_null(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(); }
 }  // namespace
 
-nlohmann::json solver_json(const Basis& b) {
-  nlohmann::json j = {{"name", b.solver},
-                      {"reason", b.solver_reason},
+nlohmann::json solver_json(const Basis& b, const SolveReport& r) {
+  nlohmann::json j = {{"name", r.solver},
+                      {"reason", r.reason},
                       {"rank", b.rank()},
                       {"variance_beyond_rank", variance_beyond_rank(b)},
                       {"proportion_beyond_rank",
                        b.total_variance > 0 ? variance_beyond_rank(b) / b.total_variance : 0.0}};
-  if (b.solver == "randomized") {
-    j["sample_size"] = b.sample_size;
-    j["oversample"] = b.oversample;
-    j["scheme"] = b.scheme;
-    j["passes"] = b.passes;
-    if (b.scheme == "block Krylov") j["krylov_width"] = b.krylov_width;
-    else j["power_iterations"] = (b.passes - 2) / 2;
-    j["seed"] = b.seed;
-    j["precision"] = b.precision;
-    j["converged"] = b.converged;
-    j["last_relative_change"] = finite_or_null(b.last_relative_change);
-    j["subspace_residual"] = b.subspace_residual;
-    j["subspace_residual_at_rounding_floor"] = b.subspace_residual <= b.residual_floor;
-    j["residual_rounding_floor"] = b.residual_floor;
-    j["optimality_gap_estimate"] = finite_or_null(b.optimality_gap_estimate);
+  if (r.solver == "randomized") {
+    j["sample_size"] = r.sample_size;
+    j["oversample"] = r.oversample;
+    j["scheme"] = r.scheme;
+    j["passes"] = r.passes;
+    if (r.scheme == "block Krylov") j["krylov_width"] = r.krylov_width;
+    else j["power_iterations"] = (r.passes - 2) / 2;
+    j["seed"] = r.seed;
+    j["precision"] = r.precision;
+    j["converged"] = r.converged;
+    j["last_relative_change"] = finite_or_null(r.last_relative_change);
+    j["subspace_residual"] = r.subspace_residual;
+    j["subspace_residual_at_rounding_floor"] = r.subspace_residual <= r.residual_floor;
+    j["residual_rounding_floor"] = r.residual_floor;
+    j["optimality_gap_estimate"] = finite_or_null(r.optimality_gap_estimate);
     j["notes"] =
         "subspace_residual: variance (sample units^2, /(N-1)) outside the sampled subspace of sample_size "
         "vectors, exact up to rounding: trace - sum of its captured eigenvalues, clamped at the rounding floor. "
@@ -115,23 +115,23 @@ nlohmann::json solver_json(const Basis& b) {
   return j;
 }
 
-std::string solver_lines(const Basis& b) {
+std::string solver_lines(const Basis& b, const SolveReport& r) {
   std::ostringstream o;
-  o << "solver: " << b.solver << " (" << b.solver_reason << "); " << b.rank() << " of " << b.dimension()
+  o << "solver: " << r.solver << " (" << r.reason << "); " << b.rank() << " of " << b.dimension()
     << " components computed\n";
   o << blas_line(blas_info());
-  if (b.solver == "randomized") {
-    o << "randomized, " << b.scheme << ": " << b.sample_size << " test vectors (" << b.oversample
-      << " oversampling), " << b.passes << " products with the data ("
-      << (b.scheme == "block Krylov" ? "Krylov space of " + std::to_string(b.krylov_width) + " vectors"
-                                     : std::to_string((b.passes - 2) / 2) + " power iterations")
-      << "), seed " << b.seed << ", " << b.precision << "-precision products, " << (b.converged ? "converged" : "stopped at the pass cap before converging")
-      << " (last move " << format_real(b.last_relative_change, 2) << " of an eigenvalue)\n";
+  if (r.solver == "randomized") {
+    o << "randomized, " << r.scheme << ": " << r.sample_size << " test vectors (" << r.oversample
+      << " oversampling), " << r.passes << " products with the data ("
+      << (r.scheme == "block Krylov" ? "Krylov space of " + std::to_string(r.krylov_width) + " vectors"
+                                     : std::to_string((r.passes - 2) / 2) + " power iterations")
+      << "), seed " << r.seed << ", " << r.precision << "-precision products, " << (r.converged ? "converged" : "stopped at the pass cap before converging")
+      << " (last move " << format_real(r.last_relative_change, 2) << " of an eigenvalue)\n";
     o << "variance outside the sampled subspace = "
-      << (b.subspace_residual <= b.residual_floor ? "<= " + format_real(b.residual_floor, 3) + " (rounding floor)"
-                                                  : format_real(b.subspace_residual, 6))
+      << (r.subspace_residual <= r.residual_floor ? "<= " + format_real(r.residual_floor, 3) + " (rounding floor)"
+                                                  : format_real(r.subspace_residual, 6))
       << "; rank-" << b.rank() << " error above optimal: "
-      << (std::isfinite(b.optimality_gap_estimate) ? "about " + format_real(100.0 * b.optimality_gap_estimate, 2) + " %"
+      << (std::isfinite(r.optimality_gap_estimate) ? "about " + format_real(100.0 * r.optimality_gap_estimate, 2) + " %"
                                                    : std::string("unknown (too few passes to estimate)"))
       << "\n";
   }

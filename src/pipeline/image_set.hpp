@@ -38,10 +38,10 @@ std::vector<int> default_ks_for(const ImageAnalysis& analysis);
 // The solver's figures as JSON: name, reason, rank, and for the randomized
 // solver sample size, oversampling, passes, seed, convergence, the captured
 // subspace residual (with its rounding floor) and the estimated distance from
-// optimal; variance_beyond_rank for every solver.
-nlohmann::json solver_json(const Basis& basis);
+// optimal; variance_beyond_rank for every solver. basis: what `report` describes.
+nlohmann::json solver_json(const Basis& basis, const SolveReport& report);
 
 // The same as console lines (each ending in "\n").
-std::string solver_lines(const Basis& basis);
+std::string solver_lines(const Basis& basis, const SolveReport& report);
 
 }  // namespace pcasweep

@@ -41,17 +41,22 @@ ImageAnalysis analyze_sources(std::vector<std::string> inputs, std::vector<Image
     // Streamed: the solver reads the patches band by band from the image.
     const PatchBlocks blocks(*patches, a.image());
     const BlockedOperator<double> op(blocks);
+    Solution solved;
     if (uses_single_precision(op.rows(), op.cols(), solver)) {
       const BlockedOperator<float> single(blocks);
-      a.basis = solve(op, &single, single.offset_ratio(), solver);
+      solved = solve(op, &single, single.offset_ratio(), solver);
     } else {
-      a.basis = solve(op, nullptr, 1.0, solver);
+      solved = solve(op, nullptr, 1.0, solver);
     }
-    if (a.basis.solver == "exact") a.moments = PatchMoments{op.rows(), op.mean(), op.scatter()};
+    a.basis = std::move(solved.basis);
+    a.solve_report = std::move(solved.report);
+    if (a.solve_report.solver == "exact") a.moments = PatchMoments{op.rows(), op.mean(), op.scatter()};
     return a;
   }
   a.X = a.layout->observe(a.sources);
-  a.basis = solve(a.X, solver);
+  Solution solved = solve(a.X, solver);
+  a.basis = std::move(solved.basis);
+  a.solve_report = std::move(solved.report);
   return a;
 }
 
@@ -358,7 +363,7 @@ nlohmann::json sweep_summary(const ImageAnalysis& a, const std::vector<SweepRow>
                  {"observations", a.observations()},
                  {"dimension", a.dimension()}};
   const Eigen::VectorXd ev = a.basis.eigenvalues;
-  j["solver"] = solver_json(a.basis);
+  j["solver"] = solver_json(a.basis, a.solve_report);
   j["spectrum"] = {{"total_variance", a.basis.total_variance},
                    {"sum_of_eigenvalues", ev.sum()},
                    {"rows", to_json(spectrum_table(a.basis))}};

@@ -48,6 +48,7 @@ struct ImageAnalysis {
   // image (observe/patch_blocks.hpp) and never held.
   Eigen::MatrixXd X;
   Basis basis;
+  SolveReport solve_report;  // how `basis` was solved (solver, reason, diagnostics)
   // Patches solved exactly: the patches' mean and scatter, which the codec
   // reuses instead of another pass (codec/image_codec.hpp).
   std::optional<PatchMoments> moments;

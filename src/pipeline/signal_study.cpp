@@ -28,7 +28,9 @@ SignalAnalysis analyze_recording(const std::string& name, Signal signal, const W
                       " frames); use a shorter --window or --hop");
   }
   a.X = a.layout->observe(a.signal.samples);
-  a.basis = solve(a.X, solver);
+  Solution solved = solve(a.X, solver);
+  a.basis = std::move(solved.basis);
+  a.solve_report = std::move(solved.report);
   return a;
 }
 
@@ -108,7 +110,7 @@ nlohmann::json signal_sweep_summary(const SignalAnalysis& a, const std::vector<S
                  {"back_padding_frames", l.back_padding()},
                  {"observations", a.X.rows()},
                  {"dimension", a.X.cols()}};
-  j["solver"] = {{"name", a.basis.solver}, {"reason", a.basis.solver_reason}};
+  j["solver"] = {{"name", a.solve_report.solver}, {"reason", a.solve_report.reason}};
   j["spectrum"] = {{"total_variance", a.basis.total_variance},
                    {"sum_of_eigenvalues", a.basis.eigenvalues.sum()},
                    {"rows", to_json(spectrum_table(a.basis))}};

@@ -36,6 +36,7 @@ struct SignalAnalysis {
   std::unique_ptr<WindowLayout> layout;
   Eigen::MatrixXd X;                    // observations, N×d
   Basis basis;
+  SolveReport solve_report;             // how `basis` was solved
 };
 
 // Reads `path`, cuts it into windows and solves. Throws Error.

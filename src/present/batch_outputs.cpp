@@ -41,7 +41,7 @@ nlohmann::json basis_json(const BatchResult& r, const std::vector<int>& ks) {
   basis["held_out_files"] = held_out;
   basis["observations"] = r.shared->observations;
   basis["dimension"] = r.shared->dimension;
-  basis["solver"] = {{"name", r.shared->basis.solver}, {"reason", r.shared->basis.solver_reason}};
+  basis["solver"] = {{"name", r.shared->solve_report.solver}, {"reason", r.shared->solve_report.reason}};
   basis["total_variance"] = r.shared->basis.total_variance;
   basis["saving"] = sharing_saving_json(r, ks);
   basis["saving_note"] =

@@ -5,7 +5,7 @@
 
 namespace pcasweep {
 
-Basis solve_exact(const CenteredOperator& op) {
+Solution solve_exact(const CenteredOperator& op) {
   const Eigen::Index n = op.rows();
   if (n < 2) throw data_error("need at least 2 observations to estimate a covariance, got " + std::to_string(n));
   const double denom = double(n - 1);
@@ -24,8 +24,9 @@ Basis solve_exact(const CenteredOperator& op) {
   // covariance is positive semidefinite, so clamp them to 0.
   basis.eigenvalues = basis.eigenvalues.cwiseMax(0.0);
   apply_sign_convention(basis.components);
-  basis.solver = "exact";
-  return basis;
+  SolveReport report;
+  report.solver = "exact";
+  return {std::move(basis), std::move(report)};
 }
 
 }  // namespace pcasweep

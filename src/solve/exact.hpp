@@ -7,13 +7,14 @@
 // small d (patches, bands).
 #pragma once
 
-#include "solve/basis.hpp"
 #include "solve/operator.hpp"
+#include "solve/solve_report.hpp"
 
 namespace pcasweep {
 
-// op: the centred data, N×d with N >= 2. Returns a complete Basis (r = d).
+// op: the centred data, N×d with N >= 2. Returns a complete Basis (r = d)
+// and a report naming the solver "exact" (reason left empty for the caller).
 // Throws Error(data) if N < 2 (a covariance needs two observations).
-Basis solve_exact(const CenteredOperator& op);
+Solution solve_exact(const CenteredOperator& op);
 
 }  // namespace pcasweep

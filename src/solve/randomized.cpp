@@ -105,11 +105,11 @@ double rounding_level(const CenteredOperator& op) {
 // ‖A_c‖²_F − ‖P·A_c‖²_F where `captured` = ‖P·A_c‖²_F. Both terms carry
 // relative rounding of order rounding_level(op), so a difference below
 // that fraction of ‖A_c‖²_F is noise: it is clamped to that floor.
-void set_residual(Basis& basis, double frobenius2, double captured, const CenteredOperator& op) {
+void set_residual(SolveReport& report, double frobenius2, double captured, const CenteredOperator& op) {
   const double denom = double(op.rows() - 1);
   const double floor = rounding_level(op) * frobenius2;
-  basis.residual_floor = floor / denom;
-  basis.subspace_residual = std::max(frobenius2 - captured, floor) / denom;
+  report.residual_floor = floor / denom;
+  report.subspace_residual = std::max(frobenius2 - captured, floor) / denom;
 }
 
 // Distance of the rank-k error from optimal, from the rank-k error² E_m of
@@ -154,7 +154,7 @@ bool next_block_likely_last(const std::vector<double>& changes, double tolerance
 // the right singular vectors. Also used, with q = 0, when the sample is as
 // wide as min(N, d): two passes are then exact.
 void subspace_iteration(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, int power_iterations,
-                        std::uint64_t seed, double frobenius2, Basis& basis) {
+                        std::uint64_t seed, double frobenius2, Solution& out) {
   const int total_passes = 2 * power_iterations + 2;
   Eigen::MatrixXd q = op.apply(gaussian_matrix(op.cols(), l, seed));
   orthonormalize(q);
@@ -187,15 +187,15 @@ void subspace_iteration(const CenteredOperator& op, Eigen::Index k, Eigen::Index
   Eigen::MatrixXd right = last_on_right ? Eigen::MatrixXd(w * svd.matrixU().leftCols(k))
                                         : Eigen::MatrixXd(w_used * svd.matrixV().leftCols(k));
   apply_sign_convention(right);
-  basis.components = std::move(right);
-  basis.eigenvalues = sigma2.head(k) / double(op.rows() - 1);
-  basis.scheme = "power iterations";
-  basis.passes = passes;
-  basis.converged = true;
-  basis.last_relative_change = change;
-  set_residual(basis, frobenius2, sigma2.sum(), op);
+  out.basis.components = std::move(right);
+  out.basis.eigenvalues = sigma2.head(k) / double(op.rows() - 1);
+  out.report.scheme = "power iterations";
+  out.report.passes = passes;
+  out.report.converged = true;
+  out.report.last_relative_change = change;
+  set_residual(out.report, frobenius2, sigma2.sum(), op);
   const bool complete = l == std::min(op.rows(), op.cols());
-  basis.optimality_gap_estimate = complete ? 0.0 : extrapolated_gap(errors, frobenius2);
+  out.report.optimality_gap_estimate = complete ? 0.0 : extrapolated_gap(errors, frobenius2);
 }
 
 // Adaptive default: randomized block Krylov iteration (Musco & Musco, "Randomized
@@ -215,7 +215,7 @@ void subspace_iteration(const CenteredOperator& op, Eigen::Index k, Eigen::Index
 // this needs about half the products of the power scheme for far better
 // accuracy.
 void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, const RandomizedSettings& settings,
-                  double frobenius2, Basis& basis) {
+                  double frobenius2, Solution& out) {
   const Eigen::Index n = op.rows(), d = op.cols();
   // The Krylov space lives on the smaller side: the variables (s = d, blocks
   // multiplied by A_c) when d <= N, else the observations (s = N, blocks
@@ -395,22 +395,22 @@ void block_krylov(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, co
                        : Eigen::MatrixXd(y_l * svd.matrixU().leftCols(k));
   }
   apply_sign_convention(right);
-  basis.components = std::move(right);
-  basis.eigenvalues = all.head(k) / double(n - 1);
-  basis.scheme = "block Krylov";
-  basis.krylov_width = m;
-  basis.passes = passes;
-  basis.converged = converged;
-  basis.last_relative_change = changes.empty() ? std::numeric_limits<double>::quiet_NaN() : changes.back();
+  out.basis.components = std::move(right);
+  out.basis.eigenvalues = all.head(k) / double(n - 1);
+  out.report.scheme = "block Krylov";
+  out.report.krylov_width = m;
+  out.report.passes = passes;
+  out.report.converged = converged;
+  out.report.last_relative_change = changes.empty() ? std::numeric_limits<double>::quiet_NaN() : changes.back();
   // The residual of the l leading Ritz vectors: an l-dimensional subspace, as
   // for the power scheme (‖A_c·K·S_l‖²_F = Σ of the l leading Ritz values).
-  set_residual(basis, frobenius2, all.sum(), op);
-  basis.optimality_gap_estimate = errors.back() <= captured_floor ? 0.0 : extrapolated_gap(errors, frobenius2);
+  set_residual(out.report, frobenius2, all.sum(), op);
+  out.report.optimality_gap_estimate = errors.back() <= captured_floor ? 0.0 : extrapolated_gap(errors, frobenius2);
 }
 
 }  // namespace
 
-Basis solve_randomized(const CenteredOperator& op, const RandomizedSettings& settings) {
+Solution solve_randomized(const CenteredOperator& op, const RandomizedSettings& settings) {
   const Eigen::Index n = op.rows(), d = op.cols();
   if (n < 2) throw data_error("need at least 2 observations to estimate a covariance, got " + std::to_string(n));
   const Eigen::Index k = settings.rank, smallest = std::min(n, d);
@@ -424,7 +424,8 @@ Basis solve_randomized(const CenteredOperator& op, const RandomizedSettings& set
   const Eigen::Index l = std::min<Eigen::Index>(k + settings.oversample, smallest);
   const double denom = double(n - 1);
 
-  Basis basis;
+  Solution out;
+  Basis& basis = out.basis;
   basis.mean = op.mean();
   basis.observation_count = n;
   basis.variable_variances = op.column_sums_of_squares() / denom;
@@ -432,17 +433,17 @@ Basis solve_randomized(const CenteredOperator& op, const RandomizedSettings& set
   const double frobenius2 = basis.total_variance * denom;  // ‖A_c‖²_F
 
   if (settings.power_iterations >= 0) {
-    subspace_iteration(op, k, l, settings.power_iterations, settings.seed, frobenius2, basis);
+    subspace_iteration(op, k, l, settings.power_iterations, settings.seed, frobenius2, out);
   } else if (l == smallest) {
-    subspace_iteration(op, k, l, 0, settings.seed, frobenius2, basis);  // two passes are exact
+    subspace_iteration(op, k, l, 0, settings.seed, frobenius2, out);  // two passes are exact
   } else {
-    block_krylov(op, k, l, settings, frobenius2, basis);
+    block_krylov(op, k, l, settings, frobenius2, out);
   }
-  basis.solver = "randomized";
-  basis.sample_size = l;
-  basis.oversample = int(l - k);
-  basis.seed = settings.seed;
-  return basis;
+  out.report.solver = "randomized";
+  out.report.sample_size = l;
+  out.report.oversample = int(l - k);
+  out.report.seed = settings.seed;
+  return out;
 }
 
 }  // namespace pcasweep

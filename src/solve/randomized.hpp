@@ -30,8 +30,8 @@
 #include <cstdint>
 #include <vector>
 
-#include "solve/basis.hpp"
 #include "solve/operator.hpp"
+#include "solve/solve_report.hpp"
 
 namespace pcasweep {
 
@@ -51,10 +51,10 @@ struct RandomizedSettings {
   int max_passes = kMaxAdaptivePasses;   // adaptive rule only
 };
 
-// op: N×d centred data, N >= 2. Returns a Basis with r = k components and the
-// randomized fields filled (see basis.hpp). Throws Error(data) for N < 2,
+// op: N×d centred data, N >= 2. Returns a Basis with r = k components and a
+// report with the randomized fields filled (see solve_report.hpp). Throws Error(data) for N < 2,
 // Error(usage) for k outside 1..min(N, d) or negative p.
-Basis solve_randomized(const CenteredOperator& op, const RandomizedSettings& settings);
+Solution solve_randomized(const CenteredOperator& op, const RandomizedSettings& settings);
 
 // Standard normal samples: entry i of the column-major rows×cols matrix is a
 // pure function of (seed, i) (Box–Muller on a SplitMix64 hash of the counter).

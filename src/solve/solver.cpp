@@ -90,10 +90,10 @@ Plan plan_solve(Eigen::Index n, Eigen::Index d, const SolverSettings& settings) 
   return {choice, rank, reason};
 }
 
-Basis run(const CenteredOperator& op, const Plan& plan, const SolverSettings& settings) {
-  Basis basis;
+Solution run(const CenteredOperator& op, const Plan& plan, const SolverSettings& settings) {
+  Solution solution;
   if (plan.choice == SolverChoice::exact) {
-    basis = solve_exact(op);
+    solution = solve_exact(op);
   } else {
     RandomizedSettings rs;
     rs.rank = plan.rank;
@@ -101,16 +101,16 @@ Basis run(const CenteredOperator& op, const Plan& plan, const SolverSettings& se
     rs.power_iterations = settings.power_iterations;
     rs.seed = settings.seed;
     if (settings.tolerance > 0.0) rs.tolerance = settings.tolerance;
-    basis = solve_randomized(op, rs);
+    solution = solve_randomized(op, rs);
   }
-  basis.solver_reason = plan.reason;
-  basis.precision = op.unit_roundoff() > kDoubleRoundoff ? "single" : "double";
-  return basis;
+  solution.report.reason = plan.reason;
+  solution.report.precision = op.unit_roundoff() > kDoubleRoundoff ? "single" : "double";
+  return solution;
 }
 
 }  // namespace
 
-Basis solve(const CenteredOperator& op, const SolverSettings& settings) {
+Solution solve(const CenteredOperator& op, const SolverSettings& settings) {
   return run(op, plan_solve(op.rows(), op.cols(), settings), settings);
 }
 
@@ -129,14 +129,15 @@ namespace {
 // plan and the data allow it, else (or when its tail is below float32's
 // resolution) run_double(plan) — built only then.
 template <class RunDouble>
-Basis solve_with_precision(Eigen::Index n, Eigen::Index d, const CenteredOperator* single, double ratio,
+Solution solve_with_precision(Eigen::Index n, Eigen::Index d, const CenteredOperator* single, double ratio,
                            const SolverSettings& settings, RunDouble&& run_double) {
   Plan plan = plan_solve(n, d, settings);
   if (plan.choice == SolverChoice::randomized && settings.precision == Precision::single_precision && single) {
     char buf[320];
     if (ratio <= kSingleOffsetLimit) {
-      Basis basis = run(*single, plan, settings);
-      if (precision_suffices(basis, single->unit_roundoff())) return basis;
+      Solution solution = run(*single, plan, settings);
+      const Basis& basis = solution.basis;
+      if (precision_suffices(basis, single->unit_roundoff())) return solution;
       std::snprintf(buf, sizeof buf,
                     "; double-precision products after a single-precision solve: the variance beyond rank %ld "
                     "(%.2g of the total) is below what float32 products resolve (%g times their rounding, %.2g)",
@@ -154,12 +155,12 @@ Basis solve_with_precision(Eigen::Index n, Eigen::Index d, const CenteredOperato
 }
 }  // namespace
 
-Basis solve(const CenteredOperator& op, const CenteredOperator* single, double ratio, const SolverSettings& settings) {
+Solution solve(const CenteredOperator& op, const CenteredOperator* single, double ratio, const SolverSettings& settings) {
   return solve_with_precision(op.rows(), op.cols(), single, ratio, settings,
                               [&](const Plan& plan) { return run(op, plan, settings); });
 }
 
-Basis solve(const Eigen::MatrixXd& X, const SolverSettings& settings) {
+Solution solve(const Eigen::MatrixXd& X, const SolverSettings& settings) {
   const auto run_dense = [&](const Plan& plan) { return run(DenseOperator(X), plan, settings); };
   if (!uses_single_precision(X.rows(), X.cols(), settings))
     return solve_with_precision(X.rows(), X.cols(), nullptr, 1.0, settings, run_dense);

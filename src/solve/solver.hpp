@@ -1,8 +1,8 @@
 // pcasweep/solve/solver.hpp — choosing and running a solver.
 //
 // Contract: solve() takes the centred-data operator and the user's settings
-// and returns a Basis whose `solver` and `solver_reason` say which solver ran
-// and why. `exact` returns all d components; other solvers may return fewer
+// and returns a Solution: the Basis, and a SolveReport whose `solver` and
+// `reason` say which solver ran and why. `exact` returns all d components; other solvers may return fewer
 // (basis.rank() < d), in which case eigenvalues beyond the rank are unknown
 // but basis.total_variance still holds the exact trace. Given the observation
 // matrix itself, solve() also picks the operator: single-precision products
@@ -12,8 +12,8 @@
 #include <cstdint>
 #include <string>
 
-#include "solve/basis.hpp"
 #include "solve/operator.hpp"
+#include "solve/solve_report.hpp"
 
 namespace pcasweep {
 
@@ -83,11 +83,11 @@ Eigen::Index default_rank(Eigen::Index n, Eigen::Index d);
 // Parses "auto", "exact", "randomized". Throws Error(usage).
 SolverChoice parse_solver_choice(const std::string& text);
 
-// op: N×d centred data. Returns the basis, with solver and solver_reason
-// saying which ran and why (basis.precision: op's). Throws Error(data) for
-// N < 2, Error(usage) for a rank above min(N, d) or an exact solve too large
-// for memory.
-Basis solve(const CenteredOperator& op, const SolverSettings& settings);
+// op: N×d centred data. Returns the basis and its report, whose solver and
+// reason say which ran and why (report.precision: op's). Throws Error(data)
+// for N < 2, Error(usage) for a rank above min(N, d) or an exact solve too
+// large for memory.
+Solution solve(const CenteredOperator& op, const SolverSettings& settings);
 
 // basis: from an operator whose products round at unit_roundoff. Returns
 // whether that rounding leaves the rank-r error within about 1e-3 of optimal
@@ -102,15 +102,15 @@ bool uses_single_precision(Eigen::Index n, Eigen::Index d, const SolverSettings&
 // single-precision products (null when uses_single_precision() is false),
 // whose offset ratio ‖A‖_F/‖A_c‖_F is `offset_ratio`. Runs the rules of
 // solve(X, settings) below over these operators. Throws as solve().
-Basis solve(const CenteredOperator& op, const CenteredOperator* single, double offset_ratio,
+Solution solve(const CenteredOperator& op, const CenteredOperator* single, double offset_ratio,
             const SolverSettings& settings);
 
 // X: N×d observations (not centred). As above over DenseOperator(X), or over
 // SingleOperator(X) (a float32 copy, N·d·4 bytes more) when the randomized
 // solver runs, settings.precision is single and the data allow it: their
 // offset (kSingleOffsetLimit) before the solve, precision_suffices after it
-// (else the solve is run again in double). solver_reason says when double ran
+// (else the solve is run again in double). report.reason says when double ran
 // although single was asked.
-Basis solve(const Eigen::MatrixXd& X, const SolverSettings& settings);
+Solution solve(const Eigen::MatrixXd& X, const SolverSettings& settings);
 
 }  // namespace pcasweep

@@ -17,7 +17,6 @@ Basis spectrum_basis(std::vector<double> eigenvalues, Eigen::Index d, Eigen::Ind
   b.components = Eigen::MatrixXd::Identity(d, Eigen::Index(eigenvalues.size()));
   b.total_variance = total >= 0 ? total : b.eigenvalues.sum();
   b.observation_count = n;
-  b.solver = eigenvalues.size() == std::size_t(d) ? "exact" : "randomized";
   return b;
 }
 

@@ -41,7 +41,7 @@ TEST_CASE("randomized: exact-rank matrix recovered as BDCSVD gives it (1e-10)") 
   const Eigen::MatrixXd ac = centred(a);
   Eigen::BDCSVD<Eigen::MatrixXd> ref(ac, Eigen::ComputeThinV);
   DenseOperator op(a);
-  const Basis b = solve_randomized(op, settings_for(10));
+  const auto [b, b_report] = solve_randomized(op, settings_for(10));
   REQUIRE(b.rank() == 10);
   const Eigen::VectorXd sigma = (b.eigenvalues * double(n - 1)).cwiseSqrt();
   for (Eigen::Index i = 0; i < r; ++i) CHECK(std::abs(sigma(i) - ref.singularValues()(i)) <= 1e-10 * ref.singularValues()(0));
@@ -52,7 +52,7 @@ TEST_CASE("randomized: exact-rank matrix recovered as BDCSVD gives it (1e-10)") 
   const Eigen::MatrixXd p_ours = b.components.leftCols(r) * b.components.leftCols(r).transpose();
   CHECK((p_ref - p_ours).cwiseAbs().maxCoeff() <= 1e-10);
   // The captured subspace holds everything: the residual is at the rounding floor.
-  CHECK(b.subspace_residual <= b.residual_floor * (1 + 1e-12));
+  CHECK(b_report.subspace_residual <= b_report.residual_floor * (1 + 1e-12));
 }
 
 TEST_CASE("randomized: decaying spectrum, default settings within (1+1e-3) of optimal") {
@@ -64,14 +64,14 @@ TEST_CASE("randomized: decaying spectrum, default settings within (1+1e-3) of op
   Eigen::BDCSVD<Eigen::MatrixXd> ref(ac);
   const double optimal = std::sqrt(ref.singularValues().tail(d - k).squaredNorm());
   DenseOperator op(a);
-  const Basis b = solve_randomized(op, settings_for(k));
+  const auto [b, b_report] = solve_randomized(op, settings_for(k));
   const double ours = projection_error(ac, b.components);
-  INFO("ours " << ours << " optimal " << optimal << " passes " << b.passes);
+  INFO("ours " << ours << " optimal " << optimal << " passes " << b_report.passes);
   CHECK(ours <= (1.0 + 1e-3) * optimal);
-  CHECK(b.converged);
+  CHECK(b_report.converged);
   // The estimated distance from optimal is of the right size (loose: factor 10 or 1e-6 absolute).
-  REQUIRE(std::isfinite(b.optimality_gap_estimate));
-  CHECK(b.optimality_gap_estimate <= 10.0 * (ours / optimal - 1.0) + 1e-6);
+  REQUIRE(std::isfinite(b_report.optimality_gap_estimate));
+  CHECK(b_report.optimality_gap_estimate <= 10.0 * (ours / optimal - 1.0) + 1e-6);
 }
 
 TEST_CASE("randomized: q = 0 respects the HMT Theorem 10.6 expectation bound (loose, mean of 10 seeds)") {
@@ -96,8 +96,8 @@ TEST_CASE("randomized: q = 0 respects the HMT Theorem 10.6 expectation bound (lo
     rs.oversample = 0;
     rs.power_iterations = 0;
     rs.seed = seed;
-    const Basis b = solve_randomized(op, rs);
-    CHECK(b.passes == 2);
+    const auto [b, b_report] = solve_randomized(op, rs);
+    CHECK(b_report.passes == 2);
     const Eigen::MatrixXd resid = ac - (ac * b.components) * b.components.transpose();
     mean += Eigen::BDCSVD<Eigen::MatrixXd>(resid).singularValues()(0) / 10.0;
   }
@@ -111,8 +111,8 @@ TEST_CASE("randomized: orthonormal, sorted, deterministic sign, bit-identical fo
   const Eigen::VectorXd s = Eigen::VectorXd::LinSpaced(d, 0, double(d - 1)).unaryExpr([](double i) { return std::exp(-i / 8.0); });
   const Eigen::MatrixXd a = with_spectrum(n, d, s, 41);
   DenseOperator op(a);
-  const Basis b1 = solve_randomized(op, settings_for(k));
-  const Basis b2 = solve_randomized(op, settings_for(k));
+  const auto [b1, b1_report] = solve_randomized(op, settings_for(k));
+  const auto [b2, b2_report] = solve_randomized(op, settings_for(k));
   CHECK((b1.components.transpose() * b1.components - Eigen::MatrixXd::Identity(k, k)).cwiseAbs().maxCoeff() <= 1e-10);
   for (Eigen::Index i = 1; i < k; ++i) CHECK(b1.eigenvalues(i) <= b1.eigenvalues(i - 1));
   for (Eigen::Index j = 0; j < k; ++j) {
@@ -122,7 +122,7 @@ TEST_CASE("randomized: orthonormal, sorted, deterministic sign, bit-identical fo
   }
   CHECK(b1.components == b2.components);  // bit for bit
   CHECK(b1.eigenvalues == b2.eigenvalues);
-  CHECK(b1.passes == b2.passes);
+  CHECK(b1_report.passes == b2_report.passes);
 }
 
 TEST_CASE("randomized: the Gaussian test matrix does not depend on the thread count") {
@@ -146,7 +146,8 @@ TEST_CASE("randomized: another seed gives the same eigenvalues to 1e-6 on a sepa
   DenseOperator op(a);
   RandomizedSettings r1 = settings_for(k), r2 = settings_for(k);
   r2.seed = 12345;
-  const Basis b1 = solve_randomized(op, r1), b2 = solve_randomized(op, r2);
+  const auto [b1, b1_report] = solve_randomized(op, r1);
+  const auto [b2, b2_report] = solve_randomized(op, r2);
   CHECK(b1.components != b2.components);
   for (Eigen::Index i = 0; i < k; ++i) CHECK(std::abs(b1.eigenvalues(i) - b2.eigenvalues(i)) <= 1e-6 * b1.eigenvalues(i));
 }
@@ -176,9 +177,9 @@ TEST_CASE("randomized: a subspace as wide as min(N, d) is exact after two passes
   const Eigen::MatrixXd ac = centred(a);
   Eigen::BDCSVD<Eigen::MatrixXd> ref(ac);
   DenseOperator op(a);
-  const Basis b = solve_randomized(op, settings_for(20));  // l = min(20 + 10, 25) = 25 = d
-  CHECK(b.passes == 2);
-  CHECK(b.optimality_gap_estimate == 0.0);
+  const auto [b, b_report] = solve_randomized(op, settings_for(20));  // l = min(20 + 10, 25) = 25 = d
+  CHECK(b_report.passes == 2);
+  CHECK(b_report.optimality_gap_estimate == 0.0);
   for (Eigen::Index i = 0; i < 20; ++i)
     CHECK(std::abs(b.eigenvalues(i) * 39.0 - ref.singularValues()(i) * ref.singularValues()(i)) <=
           1e-10 * ref.singularValues()(0) * ref.singularValues()(0));
@@ -188,9 +189,9 @@ TEST_CASE("solve: auto explains its choice; exact refuses a covariance too large
   const Eigen::MatrixXd a = gaussian_matrix(50, 20, 5);
   DenseOperator op(a);
   SolverSettings s;
-  const Basis b = solve(op, s);
-  CHECK(b.solver == "exact");
-  CHECK(b.solver_reason.find("d = 20") != std::string::npos);
+  const auto [b, b_report] = solve(op, s);
+  CHECK(b_report.solver == "exact");
+  CHECK(b_report.reason.find("d = 20") != std::string::npos);
   const CostEstimate big = estimate_costs(400, 65536, 32, 10);
   CHECK(big.exact_bytes > kExactMemoryLimit);
   CHECK(big.randomized_seconds < big.exact_seconds);
@@ -207,7 +208,7 @@ TEST_CASE("randomized: wide data (N < d) keeps the accuracy of tall data") {
   const Eigen::MatrixXd ac = centred(a);
   Eigen::BDCSVD<Eigen::MatrixXd> ref(ac, Eigen::ComputeThinV);
   DenseOperator op(a);
-  const Basis b = solve_randomized(op, settings_for(8));
+  const auto [b, b_report] = solve_randomized(op, settings_for(8));
   const Eigen::VectorXd sigma = (b.eigenvalues * double(n - 1)).cwiseSqrt();
   for (Eigen::Index i = 0; i < r; ++i) CHECK(std::abs(sigma(i) - ref.singularValues()(i)) <= 1e-10 * ref.singularValues()(0));
   const Eigen::MatrixXd p_ref = ref.matrixV().leftCols(r) * ref.matrixV().leftCols(r).transpose();
@@ -222,11 +223,11 @@ TEST_CASE("randomized: wide data (N < d) keeps the accuracy of tall data") {
   const Eigen::MatrixXd wc = centred(w);
   const Eigen::VectorXd sv = Eigen::BDCSVD<Eigen::MatrixXd>(wc).singularValues();
   DenseOperator wop(w);
-  const Basis bw = solve_randomized(wop, settings_for(k));
+  const auto [bw, bw_report] = solve_randomized(wop, settings_for(k));
   const double optimal = std::sqrt(sv.tail(sv.size() - k).squaredNorm());
-  INFO("passes " << bw.passes);
+  INFO("passes " << bw_report.passes);
   CHECK(projection_error(wc, bw.components) <= (1.0 + 1e-3) * optimal);
-  CHECK(bw.converged);
+  CHECK(bw_report.converged);
 }
 
 TEST_CASE("solve: single precision asked for on data whose mean dwarfs its spread runs in double, and says why") {
@@ -241,17 +242,17 @@ TEST_CASE("solve: single precision asked for on data whose mean dwarfs its sprea
   settings.choice = SolverChoice::randomized;
   settings.rank = 4;
   settings.precision = Precision::single_precision;
-  const Basis guarded = solve(a, settings);
-  CHECK(guarded.precision == "double");
-  CHECK(guarded.solver_reason.find("although single was asked") != std::string::npos);
+  const auto [guarded, guarded_report] = solve(a, settings);
+  CHECK(guarded_report.precision == "double");
+  CHECK(guarded_report.reason.find("although single was asked") != std::string::npos);
   // The same data centred (ratio 1) run in single; with with_spectrum's own
   // column offsets of 10..20 (about 40 times this spread) they too stay in double.
   const Eigen::MatrixXd offset = with_spectrum(400, 60, s, 21);
-  CHECK(solve(centred(offset), settings).precision == "single");
-  CHECK(solve(offset, settings).precision == "double");
+  CHECK(solve(centred(offset), settings).report.precision == "single");
+  CHECK(solve(offset, settings).report.precision == "double");
   // Exact ignores the request: its scatter is accumulated in double.
   settings.choice = SolverChoice::exact;
-  CHECK(solve(a, settings).precision == "double");
+  CHECK(solve(a, settings).report.precision == "double");
 }
 
 TEST_CASE("solve: a single-precision solve whose tail lies below float32 rounding is redone in double") {
@@ -264,13 +265,13 @@ TEST_CASE("solve: a single-precision solve whose tail lies below float32 roundin
   settings.choice = SolverChoice::randomized;
   settings.precision = Precision::single_precision;
   settings.rank = 10;
-  const Basis kept = solve(a, settings);
-  CHECK(kept.precision == "single");
+  const auto [kept, kept_report] = solve(a, settings);
+  CHECK(kept_report.precision == "single");
   CHECK(precision_suffices(kept, SingleOperator(a).unit_roundoff()));
   settings.rank = 30;
-  const Basis redone = solve(a, settings);
-  CHECK(redone.precision == "double");
-  CHECK(redone.solver_reason.find("after a single-precision solve") != std::string::npos);
+  const auto [redone, redone_report] = solve(a, settings);
+  CHECK(redone_report.precision == "double");
+  CHECK(redone_report.reason.find("after a single-precision solve") != std::string::npos);
   // Redone in double, the rank-30 error is near optimal again (reference: BDCSVD).
   const Eigen::BDCSVD<Eigen::MatrixXd> ref(a);
   const double optimal = std::sqrt(ref.singularValues().tail(ref.singularValues().size() - 30).squaredNorm());

@@ -286,15 +286,15 @@ TEST_CASE("single: randomized solve of a decaying spectrum with single products 
   const Eigen::VectorXd sv = ref.singularValues();
   // Reference: the optimal rank-k error (Eckart–Young) from BDCSVD's σ.
   const double optimal = std::sqrt(sv.tail(d - k).squaredNorm());
-  const Basis b = solve(a, single_randomized(k));
-  CHECK(b.precision == "single");
-  CHECK(b.solver == "randomized");
-  CHECK(b.solver_reason.find("although single") == std::string::npos);
+  const auto [b, b_report] = solve(a, single_randomized(k));
+  CHECK(b_report.precision == "single");
+  CHECK(b_report.solver == "randomized");
+  CHECK(b_report.reason.find("although single") == std::string::npos);
   REQUIRE(b.rank() == k);
   const double ours = (ac - (ac * b.components) * b.components.transpose()).norm();
-  INFO("ours " << ours << " optimal " << optimal << " passes " << b.passes << " offset ratio " << ratio);
+  INFO("ours " << ours << " optimal " << optimal << " passes " << b_report.passes << " offset ratio " << ratio);
   CHECK(ours <= (1.0 + 1e-3) * optimal);
-  CHECK(b.converged);
+  CHECK(b_report.converged);
   // Eigenvalues σ²/(N−1) from BDCSVD, 1e-5 relative (this spectrum: σ₂₀²/σ₁² ≈ 0.02).
   const double eig_err = eigenvalue_error(b, sv, n, k);
   INFO("largest relative eigenvalue error " << eig_err);
@@ -304,10 +304,10 @@ TEST_CASE("single: randomized solve of a decaying spectrum with single products 
   // Components are built in double: orthonormal to 1e-10.
   CHECK((b.components.transpose() * b.components - Eigen::MatrixXd::Identity(k, k)).cwiseAbs().maxCoeff() <= 1e-10);
   // Same seed, same answer, bit for bit.
-  const Basis again = solve(a, single_randomized(k));
+  const auto [again, again_report] = solve(a, single_randomized(k));
   CHECK(again.eigenvalues == b.eigenvalues);
   CHECK(again.components == b.components);
-  CHECK(again.passes == b.passes);
+  CHECK(again_report.passes == b_report.passes);
 }
 
 TEST_CASE("single: asked for with the exact solver (or auto choosing exact) the products stay double") {
@@ -317,17 +317,17 @@ TEST_CASE("single: asked for with the exact solver (or auto choosing exact) the 
   SolverSettings settings;
   settings.precision = Precision::single_precision;
   settings.choice = SolverChoice::exact;
-  const Basis exact = solve(a, settings);
-  CHECK(exact.solver == "exact");
-  CHECK(exact.precision == "double");
+  const auto [exact, exact_report] = solve(a, settings);
+  CHECK(exact_report.solver == "exact");
+  CHECK(exact_report.precision == "double");
   settings.choice = SolverChoice::automatic;  // d = 60 <= kAlwaysExactDimension: auto runs exact
-  const Basis automatic = solve(a, settings);
-  CHECK(automatic.solver == "exact");
-  CHECK(automatic.precision == "double");
+  const auto [automatic, automatic_report] = solve(a, settings);
+  CHECK(automatic_report.solver == "exact");
+  CHECK(automatic_report.precision == "double");
   // Control: the same data with the randomized solver does run in single.
   settings.choice = SolverChoice::randomized;
   settings.rank = 5;
-  CHECK(solve(a, settings).precision == "single");
+  CHECK(solve(a, settings).report.precision == "single");
 }
 
 TEST_CASE("single: wide data (N < d: observation side and fused A_c·A_cᵀ sweeps) against BDCSVD") {
@@ -340,10 +340,10 @@ TEST_CASE("single: wide data (N < d: observation side and fused A_c·A_cᵀ swee
   const Eigen::MatrixXd ac = centred(a);
   CAPTURE(a.norm() / ac.norm());
   const Eigen::VectorXd sv = Eigen::BDCSVD<Eigen::MatrixXd>(ac).singularValues();
-  const Basis b = solve(a, single_randomized(k));
-  CHECK(b.precision == "single");
+  const auto [b, b_report] = solve(a, single_randomized(k));
+  CHECK(b_report.precision == "single");
   const double eig_err = eigenvalue_error(b, sv, n, k);
-  INFO("largest relative eigenvalue error " << eig_err << ", passes " << b.passes);
+  INFO("largest relative eigenvalue error " << eig_err << ", passes " << b_report.passes);
   CHECK(eig_err <= 1e-5);
   CHECK((b.components.transpose() * b.components - Eigen::MatrixXd::Identity(k, k)).cwiseAbs().maxCoeff() <= 1e-10);
   const double optimal = std::sqrt(sv.tail(sv.size() - k).squaredNorm());
@@ -362,9 +362,9 @@ TEST_CASE("single: constant data (A_c = 0) have an infinite offset ratio and sti
   SolverSettings s;
   s.choice = SolverChoice::randomized;
   s.rank = 3;
-  const Basis b = solve(op, s);
+  const auto [b, b_report] = solve(op, s);
   const double sigma_bound = std::sqrt(12.0) * 0x1p-24 * double(x.norm());
   CHECK(b.eigenvalues.cwiseAbs().maxCoeff() <= sigma_bound * sigma_bound / 39.0);
   CHECK(b.total_variance == 0.0);
-  CHECK(b.passes <= 2);
+  CHECK(b_report.passes <= 2);
 }
