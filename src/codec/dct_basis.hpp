@@ -17,7 +17,7 @@ namespace pcasweep {
 // mean: d, the observations' mean; scatter: d×d, Σ (x − mean)(x − mean)ᵀ over the
 // N = observations rows; patch: the patch geometry (d = ph·pw·c); channels: the
 // image's channels (c = channels for joint colour, 1 otherwise). Returns the d×d
-// basis (rank d, solver "dct"). Divides by N − 1 (by 1 when N ≤ 1). Throws nothing.
+// basis (rank d; the caller names it "dct" in its SolveReport). Divides by N − 1 (by 1 when N ≤ 1). Throws nothing.
 Basis dct_basis(const Eigen::VectorXd& mean, const Eigen::MatrixXd& scatter, Eigen::Index observations,
                 const PatchOptions& patch, int channels);
 
