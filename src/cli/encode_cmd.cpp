@@ -1,7 +1,7 @@
 // pcasweep encode INPUT --k K [--basis BASIS] [--quality Q | --target-psnr DB] -o FILE
 #include <iostream>
 #include <memory>
-#include <optional>
+#include <sstream>
 
 #include "cli/command.hpp"
 #include "cli/image_options.hpp"
@@ -27,6 +27,33 @@ struct EncodeArgs {
   bool stats = false;
   ImageOptionText image;
 };
+
+// What encode prints: k, the components coded, the water level and the file's size.
+std::string encode_report(const EncodeArgs& args, const EncodedFile& e) {
+  const EncodeResult& r = e.result;
+  const double bpp = 8.0 * double(r.bytes.size()) / (double(e.width) * e.height);
+  std::ostringstream o;
+  o << args.input << ": k = " << args.k << ", " << r.coded << " component(s) above the water level θ = "
+    << r.water_level << " (nominal " << r.nominal_psnr_db << " dB, model " << psnr_from_mse(r.predicted_mse, e.max_value)
+    << " dB)\nwrote " << args.out << ": " << r.bytes.size() << " bytes, " << bpp << " bits per pixel\n";
+  return o.str();
+}
+
+// The entropy stage's figures (--stats).
+std::string entropy_report(const EncodeResult& r) {
+  const char* kept = r.coder == EntropyCoder::adaptive      ? "adaptive"
+                     : r.coder == EntropyCoder::varint_zstd ? "varint+zstd"
+                                                            : "planes+zstd";
+  std::ostringstream o;
+  o << "entropy stage: adaptive file " << r.adaptive_file_bytes << " bytes, varint+zstd file " << r.varint_file_bytes
+    << " bytes, planes+zstd file " << r.planes_file_bytes << " bytes; wrote " << kept << "\n"
+    << "side information uncompressed (steps, indices, mean, basis columns): " << r.side_bytes << " bytes\n"
+    << "order-0 entropy of the quantised coefficients (per component): " << r.coefficient_entropy_bits / 8.0
+    << " bytes\n"
+    << "Gaussian model rate: " << r.gaussian_rate_bits << " bits per observation\n";
+  return o.str();
+}
+
 }  // namespace
 
 Action setup_encode(CLI::App& sub) {
@@ -61,72 +88,22 @@ Action setup_encode(CLI::App& sub) {
                "the order-0 entropy of the quantised coefficients (docs/codec.md)");
   add_image_options(sub, args->image);
   return [args, t, app = &sub]() {
-    ImageStudySettings settings = image_settings(args->image);
-    CodecSettings codec;
-    codec.k = args->k;
-    codec.quality = args->quality;
-    codec.zstd_level = args->zstd_level;
-    codec.entropy = args->entropy == "zstd" ? EntropyStage::zstd : EntropyStage::adaptive;
-    codec.compare_entropy = args->stats;
-    if (t->count()) codec.target_psnr = args->target_psnr;
-    if (!args->basis.empty() && args->dct) throw usage_error("--basis and --dct are alternatives; give one");
-    std::optional<LoadedBasis> loaded;
-    if (!args->basis.empty()) loaded = load_basis_file(args->basis);
-    Image image = read_image(args->input, read_options(settings));
-    const int width = image.width, height = image.height;
-    const double max_value = image.max_value();
-    EncodeResult result;
-    if (loaded) {
-      // The basis fixes patch size and colour mode; an explicit --patch/--colour must agree.
-      PatchOptions patch = settings.patch;
-      if (!app->get_option("--patch")->count()) {
-        patch.patch_height = loaded->saved.patch.patch_height;
-        patch.patch_width = loaded->saved.patch.patch_width;
-      }
-      if (!app->get_option("--colour")->count()) patch.colour = loaded->saved.patch.colour;
-      check_basis_geometry(loaded->saved, image, patch, args->input, args->basis);
-      BasisChoice choice{BasisKind::external, &loaded->saved.basis, loaded->sha256};
-      result = encode_image(image, patch, choice, codec, args->input);
-    } else if (args->dct) {
-      BasisChoice choice;
-      choice.kind = BasisKind::dct;
-      result = encode_image(image, settings.patch, choice, codec, args->input);
-    } else {
-      // The image's own basis, from the image already read; the exact solve's moments
-      // spare the encoder its own pass over the patches.
-      auto layout = std::make_unique<PatchLayout>(image, settings.patch, args->input);
-      if (layout->observation_count() < 2)
-        throw usage_error(args->input + ": only one patch fits; use a smaller --patch or --stride");
-      std::vector<Image> sources;
-      sources.push_back(std::move(image));  // one copy of the samples, not two
-      const ImageAnalysis analysis = analyze_sources({args->input}, std::move(sources), std::move(layout), settings.solver);
-      BasisChoice choice;
-      choice.basis = &analysis.basis;
-      result = encode_image(analysis.image(), settings.patch, choice, codec, args->input,
-                            analysis.moments ? &*analysis.moments : nullptr);
-    }
-    write_file_atomic(args->out, result.bytes);
-    if (!args->quiet) {
-      const double bpp = 8.0 * double(result.bytes.size()) / (double(width) * height);
-      std::cout << args->input << ": k = " << args->k << ", " << result.coded
-                << " component(s) above the water level θ = " << result.water_level << " (nominal "
-                << result.nominal_psnr_db << " dB, model " << psnr_from_mse(result.predicted_mse, max_value)
-                << " dB)\nwrote " << args->out << ": " << result.bytes.size() << " bytes, " << bpp
-                << " bits per pixel\n";
-    }
-    if (args->stats) {
-      const char* kept = result.coder == EntropyCoder::adaptive      ? "adaptive"
-                         : result.coder == EntropyCoder::varint_zstd ? "varint+zstd"
-                                                                      : "planes+zstd";
-      std::cout << "entropy stage: adaptive file " << result.adaptive_file_bytes << " bytes, varint+zstd file "
-                << result.varint_file_bytes << " bytes, planes+zstd file " << result.planes_file_bytes
-                << " bytes; wrote " << kept << "\n"
-                << "side information uncompressed (steps, indices, mean, basis columns): " << result.side_bytes
-                << " bytes\n"
-                << "order-0 entropy of the quantised coefficients (per component): "
-                << result.coefficient_entropy_bits / 8.0 << " bytes\n"
-                << "Gaussian model rate: " << result.gaussian_rate_bits << " bits per observation\n";
-    }
+    EncodeFileSettings settings;
+    settings.image = image_settings(args->image);
+    settings.codec.k = args->k;
+    settings.codec.quality = args->quality;
+    settings.codec.zstd_level = args->zstd_level;
+    settings.codec.entropy = args->entropy == "zstd" ? EntropyStage::zstd : EntropyStage::adaptive;
+    settings.codec.compare_entropy = args->stats;
+    if (t->count()) settings.codec.target_psnr = args->target_psnr;
+    settings.basis_file = args->basis;
+    settings.dct = args->dct;
+    settings.patch_given = app->get_option("--patch")->count() > 0;
+    settings.colour_given = app->get_option("--colour")->count() > 0;
+    const EncodedFile encoded = encode_image_file(args->input, settings);
+    write_file_atomic(args->out, encoded.result.bytes);
+    if (!args->quiet) std::cout << encode_report(*args, encoded);
+    if (args->stats) std::cout << entropy_report(encoded.result);
     return 0;
   };
 }

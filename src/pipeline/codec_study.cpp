@@ -3,17 +3,16 @@
 #include <algorithm>
 #include <chrono>
 #include <exception>
-#include <limits>
 #include <numeric>
+#include <optional>
 
 #include "codec/dct_basis.hpp"
-#include "codec/gaussian_rd.hpp"
+#include "codec/rd_curve.hpp"
+#include "io/jpeg.hpp"
 #include "codec/quantize.hpp"
 #include "core/error.hpp"
 #include "io/atomic_file.hpp"
-#include "io/jpeg.hpp"
 #include "measure/image_metrics.hpp"
-#include "measure/ssim.hpp"
 #include "observe/patch_blocks.hpp"
 #include "pipeline/patch_sweep.hpp"
 #include "solve/blocked_operator.hpp"
@@ -131,6 +130,46 @@ void check_basis_geometry(const SavedBasis& s, const Image& image, const PatchOp
   }
 }
 
+EncodedFile encode_image_file(const std::string& input, const EncodeFileSettings& settings) {
+  if (!settings.basis_file.empty() && settings.dct) throw usage_error("--basis and --dct are alternatives; give one");
+  std::optional<LoadedBasis> loaded;
+  if (!settings.basis_file.empty()) loaded = load_basis_file(settings.basis_file);
+  Image image = read_image(input, read_options(settings.image));
+  EncodedFile out;
+  out.width = image.width;
+  out.height = image.height;
+  out.max_value = image.max_value();
+  PatchOptions patch = settings.image.patch;
+  if (loaded) {
+    // The basis fixes patch size and colour mode; an explicit --patch/--colour must agree.
+    if (!settings.patch_given) {
+      patch.patch_height = loaded->saved.patch.patch_height;
+      patch.patch_width = loaded->saved.patch.patch_width;
+    }
+    if (!settings.colour_given) patch.colour = loaded->saved.patch.colour;
+    check_basis_geometry(loaded->saved, image, patch, input, settings.basis_file);
+    const BasisChoice choice{BasisKind::external, &loaded->saved.basis, loaded->sha256};
+    out.result = encode_image(image, patch, choice, settings.codec, input);
+    return out;
+  }
+  if (settings.dct) {
+    BasisChoice choice;
+    choice.kind = BasisKind::dct;
+    out.result = encode_image(image, patch, choice, settings.codec, input);
+    return out;
+  }
+  auto layout = std::make_unique<PatchLayout>(image, patch, input);
+  if (layout->observation_count() < 2)
+    throw usage_error(input + ": only one patch fits; use a smaller --patch or --stride");
+  std::vector<Image> sources;
+  sources.push_back(std::move(image));  // one copy of the samples, not two
+  const ImageAnalysis a = analyze_sources({input}, std::move(sources), std::move(layout), settings.image.solver);
+  BasisChoice choice;
+  choice.basis = &a.basis;
+  out.result = encode_image(a.image(), patch, choice, settings.codec, input, a.moments ? &*a.moments : nullptr);
+  return out;
+}
+
 namespace {
 
 RdPoint coded_point(const std::string& method, int quality, const PatchSweepResult& r, const Image& image) {
@@ -144,70 +183,6 @@ RdPoint coded_point(const std::string& method, int quality, const PatchSweepResu
   p.ssim = r.ssim.ssim;
   return p;
 }
-
-// JPEG at `quality`: encoded, then decoded and measured row by row (16-bit originals
-// against the 8-bit decoding scaled by 257).
-RdPoint jpeg_point(const Image& image, int quality, const std::string& name, std::string& bytes) {
-  bytes = encode_jpeg(image, quality);
-  JpegRowReader reader(bytes, name + " (JPEG q" + std::to_string(quality) + ")");
-  if (reader.width() != image.width || reader.height() != image.height || reader.channels() != image.channels)
-    throw data_error(name + ": the JPEG decoder returned another geometry");
-  QualityAccumulator quality_acc(image.channels, image.bit_depth);
-  SsimAccumulator ssim(image.width, image.height, image.channels, image.max_value());
-  const std::size_t row = std::size_t(image.width) * image.channels;
-  constexpr int kRows = 64;
-  std::vector<std::uint16_t> decoded(row * kRows);
-  for (int y = 0; y < image.height;) {
-    const int got = reader.read_rows(decoded.data(), kRows);
-    if (got <= 0) throw data_error(name + ": the JPEG decoder stopped early");
-    if (image.bit_depth == 16)
-      for (std::size_t i = 0; i < row * std::size_t(got); ++i) decoded[i] = std::uint16_t(decoded[i] * 257u);
-    const std::uint16_t* original = image.samples.data() + row * std::size_t(y);
-    quality_acc.add(original, decoded.data(), row * std::size_t(got));
-    ssim.add_rows(original, decoded.data(), got);
-    y += got;
-  }
-  RdPoint p;
-  p.method = "jpeg";
-  p.quality = quality;
-  p.bytes = std::int64_t(bytes.size());
-  p.bits_per_pixel = 8.0 * double(bytes.size()) / pixel_count(image);
-  p.psnr_db = quality_acc.result().psnr_db;
-  p.ssim = ssim.result().ssim;
-  return p;
-}
-
-// The --quality (1..100) whose model rate in bits per pixel is nearest (in log) to `bpp`.
-int quality_for_rate(const PatchLayout& layout, int bit_depth, const DecoderBasis& basis, int k, double bpp) {
-  const double per_obs_to_bpp = double(layout.observation_count()) / (double(layout.width()) * layout.height());
-  int best = 50;
-  double best_gap = std::numeric_limits<double>::infinity();
-  for (int q = 1; q <= 100; ++q) {
-    const double theta = water_level_for_psnr(quality_psnr_db(q), bit_depth == 16 ? 65535.0 : 255.0);
-    const double model = gaussian_rate_bits(basis.power.head(k), theta) * per_obs_to_bpp;
-    const double gap = std::abs(std::log(std::max(model, 1e-9)) - std::log(bpp));
-    if (gap < best_gap) {
-      best_gap = gap;
-      best = q;
-    }
-  }
-  return best;
-}
-
-// True when the measured curve of `method` has points at or below and at or above `bpp`.
-bool brackets(const std::vector<RdPoint>& points, const std::string& method, double bpp) {
-  bool below = false, above = false;
-  for (const auto& p : points)
-    if (p.method == method) {
-      below = below || p.bits_per_pixel <= bpp;
-      above = above || p.bits_per_pixel >= bpp;
-    }
-  return below && above;
-}
-
-}  // namespace
-
-namespace {
 
 using Clock = std::chrono::steady_clock;
 double seconds_since(Clock::time_point t) { return std::chrono::duration<double>(Clock::now() - t).count(); }
@@ -259,7 +234,7 @@ class CodedCurves {
         if (p.method == name) lowest = std::min(lowest, p.quality), highest = std::max(highest, p.quality);
       bool need_low = false, need_high = false;
       for (double bpp : settings.reported_bits_per_pixel) {
-        if (brackets(points, name, bpp)) continue;
+        if (curve_brackets(points, name, bpp)) continue;
         bool any_below = false;
         for (const auto& p : points) any_below = any_below || (p.method == name && p.bits_per_pixel <= bpp);
         (any_below ? need_high : need_low) = true;
@@ -321,7 +296,7 @@ void measure_jpeg(const Image& image, const std::string& name, const std::vector
 #pragma omp parallel for schedule(dynamic, 1)
   for (std::ptrdiff_t i = 0; i < std::ptrdiff_t(qs.size()); ++i) {
     try {
-      jpeg[std::size_t(i)] = jpeg_point(image, qs[std::size_t(i)], name, bytes[std::size_t(i)]);
+      jpeg[std::size_t(i)] = jpeg_rd_point(image, qs[std::size_t(i)], name, bytes[std::size_t(i)]);
     } catch (...) {
 #pragma omp critical
       if (!failure) failure = std::current_exception();
@@ -334,31 +309,6 @@ void measure_jpeg(const Image& image, const std::string& name, const std::vector
     points.push_back(std::move(jpeg[i]));
     files.push_back({qs[i], std::move(bytes[i])});
   }
-}
-
-// The Gaussian bound (codec/gaussian_rd.hpp) from the analysis's eigenvalues, its rate
-// per observation turned into bits per pixel (N·R / (W·H)).
-void add_gaussian_bound(const ImageAnalysis& a, std::vector<RdPoint>& points) {
-  const Image& image = a.image();
-  const double n = double(a.observations());
-  const double pixels = double(image.width) * double(image.height);
-  for (const GaussianRdPoint& g :
-       gaussian_rd_curve(a.basis.eigenvalues, a.basis.total_variance, a.basis.dimension(), image.max_value())) {
-    RdPoint p;
-    p.method = "gaussian_bound";
-    p.bits_per_pixel = g.bits_per_observation * n / pixels;
-    p.psnr_db = g.psnr_db;
-    p.coded = g.coded;
-    points.push_back(p);
-  }
-}
-
-// Each curve by increasing rate, curves in the order pca, dct, jpeg, gaussian_bound.
-void sort_curves(std::vector<RdPoint>& points) {
-  const auto rank = [](const std::string& m) { return m == "pca" ? 0 : m == "dct" ? 1 : m == "jpeg" ? 2 : 3; };
-  std::stable_sort(points.begin(), points.end(), [&](const RdPoint& x, const RdPoint& y) {
-    return rank(x.method) != rank(y.method) ? rank(x.method) < rank(y.method) : x.bits_per_pixel < y.bits_per_pixel;
-  });
 }
 
 }  // namespace
@@ -374,27 +324,13 @@ RdStudy rate_distortion(const ImageAnalysis& a, const RdSettings& settings) {
   if (!more.empty()) coded.measure(more, study.points, study.cost);
   if (jpeg_supports_channels(a.image().channels))
     measure_jpeg(a.image(), a.input(), settings.jpeg_qualities, study.points, study.jpeg_files, study.cost);
-  add_gaussian_bound(a, study.points);
+  for (RdPoint& p : gaussian_bound_points(a.basis.eigenvalues, a.basis.total_variance, a.basis.dimension(),
+                                          a.image().max_value(), double(a.observations()),
+                                          double(a.image().width) * double(a.image().height)))
+    study.points.push_back(std::move(p));
   sort_curves(study.points);
   study.cost.total_seconds = seconds_since(study_start);
   return study;
-}
-
-double psnr_at_rate(const std::vector<RdPoint>& points, const std::string& method, double bpp, int* coded) {
-  std::vector<const RdPoint*> curve;
-  for (const auto& p : points)
-    if (p.method == method && std::isfinite(p.psnr_db)) curve.push_back(&p);
-  std::sort(curve.begin(), curve.end(), [](auto* x, auto* y) { return x->bits_per_pixel < y->bits_per_pixel; });
-  for (std::size_t i = 1; i < curve.size(); ++i) {
-    const RdPoint &lo = *curve[i - 1], &hi = *curve[i];
-    if (lo.bits_per_pixel <= bpp && bpp <= hi.bits_per_pixel) {
-      const double span = hi.bits_per_pixel - lo.bits_per_pixel;
-      const double t = span > 0 ? (bpp - lo.bits_per_pixel) / span : 0.0;
-      if (coded) *coded = t < 0.5 ? lo.coded : hi.coded;
-      return lo.psnr_db + t * (hi.psnr_db - lo.psnr_db);
-    }
-  }
-  return NAN;
 }
 
 }  // namespace pcasweep

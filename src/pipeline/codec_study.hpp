@@ -13,6 +13,7 @@
 
 #include "codec/basis_file.hpp"
 #include "codec/image_codec.hpp"
+#include "codec/rd_curve.hpp"
 #include "pipeline/image_study.hpp"
 
 namespace pcasweep {
@@ -37,17 +38,30 @@ LoadedBasis load_basis_file(const std::string& path);
 void check_basis_geometry(const SavedBasis& saved, const Image& image, const PatchOptions& patch,
                           const std::string& image_name, const std::string& basis_name);
 
-// One point of a rate–distortion curve.
-struct RdPoint {
-  std::string method;       // "pca", "dct", "jpeg", "gaussian_bound"
-  int quality = 0;          // --quality (pca, dct) or JPEG quality; 0 for the bound
-  int coded = 0;            // components that got bits (pca, dct)
-  std::int64_t bytes = 0;   // file size (0 for the bound: it is a model)
-  double bits_per_pixel = 0.0;
-  double psnr_db = 0.0;     // measured on the decoded image (the bound: model)
-  double ssim = NAN;        // measured on the decoded image; NaN for the bound
-  std::string file;         // JPEG file written, relative to the output folder
+
+// What `encode` asks for: the image settings (patch, reader, solver), the codec's, and the basis.
+struct EncodeFileSettings {
+  ImageStudySettings image;
+  CodecSettings codec;
+  std::string basis_file;     // a basis from `fit` (only its SHA-256 is stored); empty: see dct
+  bool dct = false;           // the fixed DCT-II basis; neither: the image's own basis
+  bool patch_given = false;   // --patch / --colour given: with a basis file they must agree with it,
+  bool colour_given = false;  // else the basis file's are used
 };
+
+// A coded image and the figures `encode` reports.
+struct EncodedFile {
+  EncodeResult result;
+  int width = 0, height = 0;
+  double max_value = 0.0;  // L of the input's bit depth
+};
+
+// Reads `input` once and encodes it (codec/image_codec.hpp) with the basis asked for;
+// the image's own basis is solved from the image already read, and the exact solve's
+// moments spare the encoder its own pass. Writes nothing. Throws Error(usage) for
+// --basis with --dct, a basis whose geometry does not fit, or a single patch; Error(data)
+// for unreadable files.
+EncodedFile encode_image_file(const std::string& input, const EncodeFileSettings& settings);
 
 // The study's points, chosen so that few suffice (each is a whole coded file, decoded and
 // measured once): for PCA and DCT one --quality per target rate, the quality whose Gaussian
@@ -96,9 +110,5 @@ struct RdStudy {
 // per pixel, the JPEG files and what the study took. Writes nothing. Throws Error(usage)
 // for another layout or several images, Error(data) when a coder fails.
 RdStudy rate_distortion(const ImageAnalysis& analysis, const RdSettings& settings);
-
-// PSNR of `method` at `bpp`, linearly interpolated between the two measured points that
-// bracket it (NaN outside the curve). `coded` receives the components of the nearer point.
-double psnr_at_rate(const std::vector<RdPoint>& points, const std::string& method, double bpp, int* coded = nullptr);
 
 }  // namespace pcasweep
