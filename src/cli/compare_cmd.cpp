@@ -1,14 +1,11 @@
 // pcasweep compare ORIGINAL OTHER: MSE, PSNR and SSIM of one image against another.
-#include <chrono>
-#include <ctime>
 #include <iostream>
 #include <memory>
 
 #include "cli/command.hpp"
 #include "core/error.hpp"
 #include "io/image.hpp"
-#include "measure/image_metrics.hpp"
-#include "measure/ssim.hpp"
+#include "pipeline/image_compare.hpp"
 #include "report/table.hpp"
 
 namespace pcasweep::cli {
@@ -21,6 +18,36 @@ struct CompareArgs {
   std::string ssim_precision = "auto";
   bool json = false;
 };
+
+// The figures as one JSON object (--json).
+nlohmann::json comparison_json(const CompareArgs& args, const ImageComparison& c) {
+  nlohmann::json j = {{"original", args.original},
+                      {"other", args.other},
+                      {"data_range", c.data_range},
+                      {"mse", c.quality.mse},
+                      {"psnr_db", json_real(c.quality.psnr_db)},
+                      {"ssim", json_real(c.ssim.ssim)},
+                      {"ssim_precision", ssim_precision_name(c.ssim.precision)},
+                      {"ssim_seconds", c.ssim_seconds},
+                      {"ssim_cpu_seconds", c.ssim_cpu_seconds},
+                      {"channel_names", c.channel_names}};
+  j["channel_ssim"] = nlohmann::json::array();
+  for (double v : c.ssim.channel_ssim) j["channel_ssim"].push_back(json_real(v));
+  j["channel_psnr_db"] = nlohmann::json::array();
+  for (double v : c.quality.channel_psnr_db) j["channel_psnr_db"].push_back(json_real(v));
+  return j;
+}
+
+// Columns channel, mse, psnr_db, ssim: one row per channel, then "all".
+Table comparison_table(const ImageComparison& c) {
+  Table t;
+  t.columns = {"channel", "mse", "psnr_db", "ssim"};
+  for (std::size_t i = 0; i < c.channel_names.size(); ++i)
+    t.add_row({c.channel_names[i], c.quality.channel_mse[i], c.quality.channel_psnr_db[i], c.ssim.channel_ssim[i]});
+  t.add_row({std::string("all"), c.quality.mse, c.quality.psnr_db, c.ssim.ssim});
+  return t;
+}
+
 }  // namespace
 
 Action setup_compare(CLI::App& sub) {
@@ -36,47 +63,18 @@ Action setup_compare(CLI::App& sub) {
       ->check(CLI::IsMember({"auto", "single", "double"}));
   sub.add_flag("--json", args->json, "Print the figures as one JSON object instead of a table");
   return [args]() {
-    const Image a = read_image(args->original);
-    const Image b = read_image(args->other);
-    if (a.width != b.width || a.height != b.height || a.channels != b.channels || a.bit_depth != b.bit_depth) {
-      throw usage_error(args->other + ": differs from " + args->original +
-                        " in size, channels or bit depth; compare needs matching images");
-    }
-    const ImageQuality q = compare_images(a, b);
-    const auto start = std::chrono::steady_clock::now();
-    const std::clock_t cpu_start = std::clock();
-    const SsimResult s = compute_ssim(a, b, !args->ssim_map.empty(), parse_ssim_precision(args->ssim_precision));
-    const double ssim_seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-    const double ssim_cpu_seconds = double(std::clock() - cpu_start) / CLOCKS_PER_SEC;  // all threads
-    if (!args->ssim_map.empty()) write_png(args->ssim_map, ssim_map_image(s));
+    const ImageComparison c = compare_image_files(args->original, args->other, !args->ssim_map.empty(),
+                                                  parse_ssim_precision(args->ssim_precision));
+    if (!args->ssim_map.empty()) write_png(args->ssim_map, ssim_map_image(c.ssim));
     if (args->json) {
-      nlohmann::json j = {{"original", args->original},
-                          {"other", args->other},
-                          {"data_range", a.max_value()},
-                          {"mse", q.mse},
-                          {"psnr_db", json_real(q.psnr_db)},
-                          {"ssim", json_real(s.ssim)},
-                          {"ssim_precision", ssim_precision_name(s.precision)},
-                          {"ssim_seconds", ssim_seconds},
-                          {"ssim_cpu_seconds", ssim_cpu_seconds},
-                          {"channel_names", a.channel_names}};
-      j["channel_ssim"] = nlohmann::json::array();
-      for (double v : s.channel_ssim) j["channel_ssim"].push_back(json_real(v));
-      j["channel_psnr_db"] = nlohmann::json::array();
-      for (double v : q.channel_psnr_db) j["channel_psnr_db"].push_back(json_real(v));
       std::cout.precision(17);
-      std::cout << j.dump(2) << "\n";
+      std::cout << comparison_json(*args, c).dump(2) << "\n";
       return 0;
     }
-    Table t;
-    t.columns = {"channel", "mse", "psnr_db", "ssim"};
-    for (std::size_t c = 0; c < a.channel_names.size(); ++c)
-      t.add_row({a.channel_names[c], q.channel_mse[c], q.channel_psnr_db[c], s.channel_ssim[c]});
-    t.add_row({std::string("all"), q.mse, q.psnr_db, s.ssim});
-    std::cout << args->original << " vs " << args->other << " (L = " << a.max_value()
+    std::cout << args->original << " vs " << args->other << " (L = " << c.data_range
               << "; SSIM: Gaussian window 11x11, sigma 1.5, valid region, mean of channels, "
-              << ssim_precision_name(s.precision) << " precision)\n"
-              << render_console(t, 6);
+              << ssim_precision_name(c.ssim.precision) << " precision)\n"
+              << render_console(comparison_table(c), 6);
     if (!args->ssim_map.empty()) std::cout << "wrote " << args->ssim_map << "\n";
     return 0;
   };

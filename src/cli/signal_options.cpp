@@ -4,8 +4,11 @@
 #include <iostream>
 
 #include "core/error.hpp"
-#include "measure/choose_k.hpp"
-#include "pipeline/image_study.hpp"  // parse_k_list, default_ks, check_ks, spectrum_table
+#include "pipeline/image_study.hpp"  // parse_k_list
+#include "pipeline/spectrum_study.hpp"
+#include "pipeline/sweep_study.hpp"
+#include "present/signal_outputs.hpp"
+#include "present/sweep_tables.hpp"
 
 namespace pcasweep::cli {
 
@@ -126,24 +129,22 @@ std::string describe_analysis(const SignalAnalysis& a) {
 
 int run_signal_sweep(const std::string& input, const std::string& out, const std::string& ks_text, bool quiet,
                      const SignalStudySettings& settings) {
-  std::vector<int> ks = ks_text.empty() ? std::vector<int>{} : parse_k_list(ks_text);
-  SignalAnalysis a = analyze_signal(input, settings);
-  if (ks.empty()) ks = default_ks(a.basis.rank());
-  check_ks(ks, a.basis.rank());
-  const auto rows = write_signal_sweep(a, ks, out, signal_settings_json(settings));
-  if (!quiet) {
-    std::cout << describe_analysis(a) << "\n" << render_console(signal_sweep_table(rows, {}, false), 4);
-    for (const auto& r : rows)
-      if (r.clipped_samples > 0)
-        std::cout << "k = " << r.k << ": " << r.clipped_samples << " sample(s) clipped to the "
-                  << describe_sample_type(a.signal.sample_type) << " range\n";
-    for (const auto& rule : spectrum_rules(a.basis, {0.90, 0.95, 0.99, 0.999}))
-      std::cout << "rule " << rule.label << ": k = " << (rule.k < 0 ? std::string("n/a") : std::to_string(rule.k))
-                << (rule.lower_bound ? " (at least)" : "") << "\n";
-    std::cout << "(snr_db and prd_percent use the plain energy; prd_mean_removed_percent removes each channel's "
-                 "mean; all on the stored values)\n"
-              << "wrote " << out << "/\n";
-  }
+  const std::vector<int> ks = ks_text.empty() ? std::vector<int>{} : parse_k_list(ks_text);
+  SignalFolderRecordings recordings(out);
+  const SignalSweepStudy study = study_signal_sweep(input, settings, ks, &recordings);
+  write_signal_sweep_tables(study.analysis, study.rows, signal_settings_json(settings), recordings.folder());
+  if (quiet) return 0;
+  std::cout << describe_analysis(study.analysis) << "\n" << render_console(signal_sweep_table(study.rows, {}, false), 4);
+  for (const auto& r : study.rows)
+    if (r.clipped_samples > 0)
+      std::cout << "k = " << r.k << ": " << r.clipped_samples << " sample(s) clipped to the "
+                << describe_sample_type(study.analysis.signal.sample_type) << " range\n";
+  for (const auto& rule : study.rules)
+    std::cout << "rule " << rule.label << ": k = " << (rule.k < 0 ? std::string("n/a") : std::to_string(rule.k))
+              << (rule.lower_bound ? " (at least)" : "") << "\n";
+  std::cout << "(snr_db and prd_percent use the plain energy; prd_mean_removed_percent removes each channel's "
+               "mean; all on the stored values)\n"
+            << "wrote " << out << "/\n";
   return 0;
 }
 
@@ -151,9 +152,8 @@ int run_signal_spectrum(const std::string& input, int top, const SignalStudySett
   const SignalAnalysis a = analyze_signal(input, settings);
   Table table = spectrum_table(a.basis);
   if (top > 0 && std::size_t(top) < table.rows.size()) table.rows.resize(std::size_t(top));
-  const double sum = a.basis.eigenvalues.sum();
-  const double trace = a.basis.total_variance;
-  const double rel = trace > 0 ? std::abs(sum - trace) / trace : std::abs(sum - trace);
+  const TraceCheck check = check_trace(a.basis);
+  const double sum = check.sum, trace = check.trace, rel = check.relative_difference;
   std::cout << describe_analysis(a) << "; solver: " << a.solve_report.solver << " (" << a.solve_report.reason << ")\n"
             << "eigenvalues are variances of the sample covariance (divide by N-1), in sample units squared\n"
             << render_console(table, 6) << "total variance (trace of the covariance) = " << format_real(trace)

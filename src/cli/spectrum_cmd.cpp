@@ -2,17 +2,17 @@
 #include <cmath>
 #include <iostream>
 #include <memory>
+#include <sstream>
 
 #include "cli/command.hpp"
 #include "cli/image_options.hpp"
 #include "cli/k_options.hpp"
 #include "cli/signal_options.hpp"
 #include "core/error.hpp"
-#include "pipeline/image_set.hpp"
-#include "present/component_images.hpp"
-#include "present/k_charts.hpp"
+#include "pipeline/spectrum_study.hpp"
 #include "present/k_rules.hpp"
-#include "io/atomic_file.hpp"
+#include "present/sweep_outputs.hpp"
+#include "present/sweep_tables.hpp"
 
 namespace pcasweep::cli {
 
@@ -25,6 +25,33 @@ struct SpectrumArgs {
   KOptionText krules;
   std::string out;
 };
+
+// The spectrum, the trace check and the rules for k, as the console shows them.
+std::string spectrum_text(const SpectrumArgs& args, std::size_t files, const SpectrumStudy& study) {
+  const ImageAnalysis& a = study.analysis;
+  const TraceCheck& t = study.trace;
+  Table table = spectrum_table(a.basis);
+  if (args.top > 0 && std::size_t(args.top) < table.rows.size()) table.rows.resize(std::size_t(args.top));
+  std::ostringstream o;
+  o << args.input << (files > 1 ? " and " + std::to_string(files - 1) + " more" : "") << ": " << a.layout->describe()
+    << "; N = " << a.observations() << " observations, d = " << a.dimension() << " variables\n"
+    << solver_lines(a.basis, a.solve_report)
+    << "eigenvalues are variances of the sample covariance (divide by N-1), in sample units squared\n"
+    << render_console(table, 6) << "total variance (trace of the covariance) = " << format_real(t.trace);
+  if (a.basis.complete()) {
+    o << "\nsum of eigenvalues                      = " << format_real(t.sum)
+      << "\nrelative difference = " << format_real(t.relative_difference, 3)
+      << (t.agrees() ? "  (agree: the eigenvalues share out the total variance)"
+                     : "  (DISAGREE beyond 1e-9: the solve lost accuracy)")
+      << "\n";
+  } else {
+    o << "\nsum of the " << a.basis.rank() << " computed eigenvalues     = " << format_real(t.sum)
+      << "\n(the remaining " << format_real(t.trace - t.sum) << " lies beyond the computed rank)\n";
+  }
+  o << render_k_choice(study.choice);
+  return o.str();
+}
+
 }  // namespace
 
 Action setup_spectrum(CLI::App& sub) {
@@ -46,43 +73,18 @@ Action setup_spectrum(CLI::App& sub) {
     const KChoiceSettings k_options = k_settings(args->krules);
     std::vector<std::string> paths{args->input};
     paths.insert(paths.end(), args->more.begin(), args->more.end());
-    const ImageAnalysis a = analyze_image_files(paths, image_settings(args->image),
-                                                args->top > 0 ? std::vector<int>{args->top} : std::vector<int>{});
-    Table table = spectrum_table(a.basis);
-    if (args->top > 0 && std::size_t(args->top) < table.rows.size()) table.rows.resize(std::size_t(args->top));
-    const double sum = a.basis.eigenvalues.sum();
-    const double trace = a.basis.total_variance;
-    const double rel = trace > 0 ? std::abs(sum - trace) / trace : std::abs(sum - trace);
-    std::cout << args->input << (paths.size() > 1 ? " and " + std::to_string(paths.size() - 1) + " more" : "")
-              << ": " << a.layout->describe() << "; N = " << a.observations() << " observations, d = " << a.dimension()
-              << " variables\n"
-              << solver_lines(a.basis, a.solve_report) << "eigenvalues are variances of the sample covariance (divide by N-1), in sample units squared\n"
-              << render_console(table, 6) << "total variance (trace of the covariance) = " << format_real(trace);
-    if (a.basis.complete()) {
-      std::cout << "\nsum of eigenvalues                      = " << format_real(sum)
-                << "\nrelative difference = " << format_real(rel, 3)
-                << (rel <= 1e-9 ? "  (agree: the eigenvalues share out the total variance)"
-                                : "  (DISAGREE beyond 1e-9: the solve lost accuracy)")
-                << "\n";
-    } else {
-      std::cout << "\nsum of the " << a.basis.rank() << " computed eigenvalues     = " << format_real(sum)
-                << "\n(the remaining " << format_real(trace - sum) << " lies beyond the computed rank)\n";
-    }
-    const KChoice choice = choose_k(a, k_options);
-    std::cout << render_k_choice(choice);
+    const SpectrumStudy study = study_spectrum(paths, image_settings(args->image), args->top, k_options);
+    std::cout << spectrum_text(*args, paths.size(), study);
     if (!args->out.empty()) {
-      write_k_charts(a.basis, choice, args->krules.log_scale, args->input, args->out);
-      nlohmann::json rules = k_choice_json(choice);
+      nlohmann::json rules = k_choice_json(study.choice);
       rules["settings"] = k_settings_json(k_options, args->krules.log_scale);
-      write_file_atomic(args->out + "/rules.json", rules.dump(2) + "\n");
-      const int components_written = write_component_images(OutputFolder(args->out), a.basis.components,
-                                                            a.layout->observation_shape());
+      const int components = write_spectrum_files(study.analysis, study.choice, rules, args->krules.log_scale,
+                                                  OutputFolder(args->out));
       std::cout << "wrote " << args->out << "/scree.svg, cumulative.svg, rules.json"
-                << (components_written > 0 ? ", components/ (" + std::to_string(components_written) + " images)"
-                                           : std::string())
+                << (components > 0 ? ", components/ (" + std::to_string(components) + " images)" : std::string())
                 << "\n";
     }
-    return (!a.basis.complete() || rel <= 1e-9) ? 0 : 1;
+    return (!study.analysis.basis.complete() || study.trace.agrees()) ? 0 : 1;
   };
 }
 

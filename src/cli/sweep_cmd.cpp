@@ -2,18 +2,17 @@
 #include <cstdio>
 #include <iostream>
 #include <memory>
+#include <sstream>
 
 #include "cli/command.hpp"
 #include "cli/image_options.hpp"
 #include "cli/k_options.hpp"
 #include "cli/signal_options.hpp"
 #include "core/error.hpp"
-#include "pipeline/codec_study.hpp"
-#include "pipeline/image_set.hpp"
-#include "present/component_images.hpp"
-#include "present/k_charts.hpp"
+#include "pipeline/sweep_study.hpp"
 #include "present/k_rules.hpp"
-#include "present/rd_outputs.hpp"
+#include "present/sweep_outputs.hpp"
+#include "present/sweep_tables.hpp"
 
 namespace pcasweep::cli {
 
@@ -32,6 +31,51 @@ struct SweepArgs {
   bool no_codec = false;
   int png_level = 1;
 };
+
+// The settings as summary.json echoes them.
+nlohmann::json settings_json(const SweepArgs& args, const SweepStudySettings& s, const SweepStudy& study) {
+  nlohmann::json j = image_settings_json(s.image);
+  j["k_rules"] = k_settings_json(*s.k_rules, args.krules.log_scale);
+  j["quality"] = args.quality;
+  j["measured_on"] = study.coded ? "decoded file" : "reconstruction rounded to the bit depth";
+  j["png_level"] = args.png_level;
+  return j;
+}
+
+// "rate-distortion (rd.csv, rd.svg): <sentence> (study: ...)\n", or nothing without the RD study.
+std::string rd_line(const SweepFiles& files) {
+  if (!files.rd) return {};
+  const RdReport& rd = *files.rd;
+  int coded_points = 0;
+  for (int n : rd.cost.coded_pass_points) coded_points += n;
+  char cost[200];
+  std::snprintf(cost, sizeof cost, " (study: %d PCA/DCT points in %zu pass(es) and %d JPEG points, %.1f s)",
+                coded_points, rd.cost.coded_pass_points.size(), rd.cost.jpeg_points, rd.cost.total_seconds);
+  return "rate-distortion (rd.csv, rd.svg): " + rd.sentence + cost + "\n";
+}
+
+// What the console shows after a sweep.
+std::string sweep_report(const SweepArgs& args, const SweepStudy& study, const SweepFiles& files) {
+  const ImageAnalysis& a = study.analysis;
+  std::ostringstream o;
+  o << args.input << ": " << a.image().width << "x" << a.image().height << ", " << a.image().channels
+    << " channel(s), " << a.image().bit_depth << "-bit" << (a.alpha_dropped ? ", alpha dropped" : "") << "; "
+    << a.layout->describe() << "; N = " << a.observations() << ", d = " << a.dimension() << "\n"
+    << solver_lines(a.basis, a.solve_report) << render_console(sweep_table(study.rows, {}), 4)
+    << (study.coded ? "(stored_values_estimate and ratio_estimate count numbers kept, not bytes; bytes is the "
+                      "size of the coded file <stem>.k<K>.pcsc at --quality " +
+                          std::to_string(args.quality) + ", and the quality columns are measured on its decoding)\n"
+                    : std::string("(stored_values_estimate and ratio_estimate count numbers kept, not bytes; "
+                                  "the quality columns are measured on the plain reconstruction)\n"))
+    << rd_line(files) << render_k_choice(*study.choice)
+    << (files.components_written > 0 ? "components: " + std::to_string(files.components_written) +
+                                           " leading components as images in " + args.out +
+                                           "/components/ (mid-gray = 0)\n"
+                                     : std::string())
+    << "wrote " << args.out << "/\n";
+  return o.str();
+}
+
 }  // namespace
 
 Action setup_sweep(CLI::App& sub) {
@@ -66,65 +110,22 @@ Action setup_sweep(CLI::App& sub) {
   return [args, signal, app = &sub]() {
     if (signal_input_requested(*app, *signal, args->input))
       return run_signal_sweep(args->input, args->out, args->ks, args->quiet, signal_settings(*signal, app));
-    const ImageStudySettings settings = image_settings(args->image);
-    const KChoiceSettings k_options = k_settings(args->krules);
-    std::vector<int> ks = args->ks.empty() ? std::vector<int>{} : parse_k_list(args->ks);
+    SweepStudySettings settings;
+    settings.image = image_settings(args->image);
+    settings.ks = args->ks.empty() ? std::vector<int>{} : parse_k_list(args->ks);
+    settings.k_rules = k_settings(args->krules);
+    settings.rate_distortion = !args->no_rd;
+    settings.coding.enabled = !args->no_codec;
+    settings.coding.quality = args->quality;
+    settings.output.png.level = args->png_level;
     std::vector<std::string> paths{args->input};
     paths.insert(paths.end(), args->more.begin(), args->more.end());
-    ImageAnalysis analysis = analyze_image_files(paths, settings, ks);
-    if (ks.empty()) ks = default_ks_for(analysis);
-    check_ks_against(ks, analysis);
-    const KChoice choice = choose_k(analysis, k_options);
-    nlohmann::json settings_json = image_settings_json(settings);
-    settings_json["k_rules"] = k_settings_json(k_options, args->krules.log_scale);
-    SweepCoding coding;
-    coding.enabled = !args->no_codec;
-    coding.quality = args->quality;
-    settings_json["quality"] = args->quality;
-    nlohmann::json extra = {{"choose_k", k_choice_json(choice)}};
-    const bool codable = analysis.sources.size() == 1 && analysis.patches() != nullptr;
-    settings_json["measured_on"] =
-        args->no_codec || !codable ? "reconstruction rounded to the bit depth" : "decoded file";
-    std::string rd_line;
-    if (codable && !args->no_rd) {
-      const RdReport rd = write_rate_distortion(analysis, RdSettings{}, args->out);
-      extra["rate_distortion"] = rd.json;
-      int coded_points = 0;
-      for (int n : rd.cost.coded_pass_points) coded_points += n;
-      char cost[200];
-      std::snprintf(cost, sizeof cost, " (study: %d PCA/DCT points in %zu pass(es) and %d JPEG points, %.1f s)",
-                    coded_points, rd.cost.coded_pass_points.size(), rd.cost.jpeg_points, rd.cost.total_seconds);
-      rd_line = "rate-distortion (rd.csv, rd.svg): " + rd.sentence + cost + "\n";
-    }
-    SweepOutput output;
-    output.png.level = args->png_level;
-    settings_json["png_level"] = args->png_level;
-    const auto rows = write_sweep(analysis, ks, args->out, settings_json, extra, args->ssim_map, coding, output);
-    write_k_charts(analysis.basis, choice, args->krules.log_scale, args->input, args->out);
-    const int components_written = write_component_images(OutputFolder(args->out), analysis.basis.components,
-                                                            analysis.layout->observation_shape());
-    if (!args->quiet) {
-      std::cout << args->input << ": " << analysis.image().width << "x" << analysis.image().height << ", "
-                << analysis.image().channels << " channel(s), " << analysis.image().bit_depth << "-bit"
-                << (analysis.alpha_dropped ? ", alpha dropped" : "") << "; " << analysis.layout->describe()
-                << "; N = " << analysis.observations() << ", d = " << analysis.dimension() << "\n"
-                << solver_lines(analysis.basis, analysis.solve_report)
-                << render_console(sweep_table(rows, {}), 4)
-                << (args->no_codec || !codable
-                        ? std::string("(stored_values_estimate and ratio_estimate count numbers kept, not bytes; "
-                                      "the quality columns are measured on the plain reconstruction)\n")
-                        : "(stored_values_estimate and ratio_estimate count numbers kept, not bytes; bytes is the "
-                          "size of the coded file <stem>.k<K>.pcsc at --quality " +
-                              std::to_string(args->quality) +
-                              ", and the quality columns are measured on its decoding)\n")
-                << rd_line
-                << render_k_choice(choice)
-                << (components_written > 0 ? "components: " + std::to_string(components_written) +
-                                                 " leading components as images in " + args->out +
-                                                 "/components/ (mid-gray = 0)\n"
-                                           : std::string())
-                << "wrote " << args->out << "/\n";
-    }
+    SweepFolderImages images(args->out, args->ssim_map, settings.output.png);
+    SweepStudy study = study_image_sweep(paths, settings, &images);
+    SweepFileOptions file_options;
+    file_options.log_scale = args->krules.log_scale;
+    const SweepFiles files = write_sweep_files(study, settings_json(*args, settings, study), file_options, images.folder());
+    if (!args->quiet) std::cout << sweep_report(*args, study, files);
     return 0;
   };
 }

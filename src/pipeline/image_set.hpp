@@ -1,15 +1,13 @@
-// pcasweep/pipeline/image_set.hpp — several image files through one layout,
-// and the solver's account of itself. (The components as pictures:
-// present/component_images.hpp.)
+// pcasweep/pipeline/image_set.hpp — several image files through one layout.
+// (The solver's account of itself: present/sweep_tables.hpp; the components
+// as pictures: present/component_images.hpp.)
 //
 // Contract: analyze_image_files reads every file, validates the whole set
 // (layout, sizes, observation count, k against min(N, d)) before solving,
 // and sets the truncated solver's rank from the k's asked for. Nothing here
-// computes numbers of its own: it wires io -> observe -> solve and lays the
-// basis's figures out for the console and summary.json.
+// computes numbers of its own: it wires io -> observe -> solve.
 #pragma once
 
-#include <nlohmann/json.hpp>
 #include <string>
 #include <vector>
 
@@ -34,14 +32,5 @@ void check_ks_against(const std::vector<int>& ks, const ImageAnalysis& analysis)
 // Default k list for an analysis: 1, 2, 4, … below the computed rank r, then r
 // (r = d for the exact solver, capped at min(N, d)).
 std::vector<int> default_ks_for(const ImageAnalysis& analysis);
-
-// The solver's figures as JSON: name, reason, rank, and for the randomized
-// solver sample size, oversampling, passes, seed, convergence, the captured
-// subspace residual (with its rounding floor) and the estimated distance from
-// optimal; variance_beyond_rank for every solver. basis: what `report` describes.
-nlohmann::json solver_json(const Basis& basis, const SolveReport& report);
-
-// The same as console lines (each ending in "\n").
-std::string solver_lines(const Basis& basis, const SolveReport& report);
 
 }  // namespace pcasweep

@@ -310,184 +310,23 @@ std::vector<SweepRow> sweep_ks(const ImageAnalysis& a, const std::vector<int>& k
   return rows;
 }
 
-Table spectrum_table(const Basis& basis) {
-  Table t;
-  t.columns = {"component", "eigenvalue", "proportion", "cumulative"};
-  const Eigen::VectorXd p = proportions(basis), c = cumulative_proportions(basis);
-  for (Eigen::Index i = 0; i < basis.rank(); ++i) t.add_row({std::int64_t(i + 1), basis.eigenvalues(i), p(i), c(i)});
-  return t;
-}
-
-Table sweep_table(const std::vector<SweepRow>& rows, const std::vector<std::string>& channel_names) {
-  Table t;
-  t.columns = {"k", "mse", "rmse", "psnr_db", "ssim", "max_abs_error", "relative_error", "energy_retained",
-               "stored_values_estimate", "ratio_estimate", "bytes", "coded_components", "bits_per_pixel",
-               "compression_ratio", "ratio_to_png"};
-  const bool per_channel = channel_names.size() > 1;
-  if (per_channel)
-    for (const auto& name : channel_names) t.columns.push_back("psnr_db_" + name);
-  for (const auto& r : rows) {
-    std::vector<Cell> cells = {std::int64_t(r.k), r.quality.mse, r.quality.rmse, r.quality.psnr_db, r.ssim,
-                               r.quality.max_abs_error, r.quality.relative_error, r.energy_retained,
-                               r.stored_values, r.ratio};
-    if (r.bytes >= 0) {
-      cells.insert(cells.end(), {Cell{r.bytes}, Cell{std::int64_t(r.coded_components)}, Cell{r.bits_per_pixel},
-                                 Cell{r.compression_ratio}, Cell{r.ratio_to_png}});
-    } else {
-      cells.insert(cells.end(), 5, Cell{});
-    }
-    if (per_channel)
-      for (double v : r.quality.channel_psnr_db) cells.push_back(v);
-    t.add_row(std::move(cells));
-  }
-  return t;
-}
-
-nlohmann::json sweep_summary(const ImageAnalysis& a, const std::vector<SweepRow>& rows,
-                             const nlohmann::json& settings) {
-  nlohmann::json j;
-  j["tool"] = {{"name", "pcasweep"}, {"version", PCASWEEP_VERSION}};
-  const Image& first = a.image();
-  j["input"] = {{"files", a.inputs},
-                {"width", first.width},
-                {"height", first.height},
-                {"channels", first.channels},
-                {"channel_names", first.channel_names},
-                {"bit_depth", first.bit_depth},
-                {"alpha", a.alpha_dropped ? "dropped (--drop-alpha)"
-                                          : (first.channels == 2 || first.channels == 4 ? "kept as a channel"
-                                                                                       : "none")}};
-  j["settings"] = settings;
-  j["layout"] = {{"name", a.layout->name()},
-                 {"description", a.layout->describe()},
-                 {"observations", a.observations()},
-                 {"dimension", a.dimension()}};
-  const Eigen::VectorXd ev = a.basis.eigenvalues;
-  j["solver"] = solver_json(a.basis, a.solve_report);
-  j["spectrum"] = {{"total_variance", a.basis.total_variance},
-                   {"sum_of_eigenvalues", ev.sum()},
-                   {"rows", to_json(spectrum_table(a.basis))}};
-  j["sweep"] = to_json(sweep_table(rows, first.channel_names));
-  j["size_estimate_note"] =
-      "stored_values = k*d + N*k + d counts numbers kept (basis, coefficients, mean), not bytes; "
-      "ratio = stored_values / raw samples. It is an estimate, not the size of a file.";
-  return j;
-}
-
-std::string output_stem(const std::string& path) { return std::filesystem::path(path).stem().string(); }
-
-}  // namespace pcasweep
-
-namespace pcasweep {
-
-namespace {
-
-// Writes a point's rows as PNG, row by row.
-class PngSink : public RowSink {
- public:
-  PngSink(const std::string& path, const Image& like, const PngWriteOptions& options)
-      : writer_(path, like.width, like.height, like.channels, like.bit_depth, options) {}
-  void add(const std::uint16_t*, const std::uint16_t* written, int, int count) override { writer_.write_rows(written, count); }
-  void finish() override { writer_.finish(); }
-
- private:
-  PngRowWriter writer_;
-};
-
-// Writes the local SSIM map (0..1 scaled to 0..255, negative values as 0) as an 8-bit gray PNG.
-class SsimMapWriter {
- public:
-  SsimMapWriter(const std::string& path, int width, int height, const PngWriteOptions& options)
-      : writer_(path, width, height, 1, 8, options), row_(std::size_t(width)) {}
-  void add(const float* values) {
-    for (std::size_t i = 0; i < row_.size(); ++i)
-      row_[i] = std::uint16_t(std::lround(std::clamp(double(values[i]), 0.0, 1.0) * 255.0));
-    writer_.write_rows(row_.data(), 1);
-  }
-  void finish() { writer_.finish(); }
-
- private:
-  PngRowWriter writer_;
-  std::vector<std::uint16_t> row_;
-};
-
-// Copies a finished file onto another name, atomically.
-void copy_file_atomic(const std::string& from, const std::string& to) {
-  write_via_temporary(to, [&](const std::string& temporary) {
-    std::error_code ec;
-    std::filesystem::copy_file(from, temporary, std::filesystem::copy_options::overwrite_existing, ec);
-    return !ec;
-  });
-}
-
-}  // namespace
-
-std::vector<SweepRow> write_sweep(const ImageAnalysis& a, const std::vector<int>& ks, const std::string& out_dir,
-                                  const nlohmann::json& settings, const nlohmann::json& extra_summary,
-                                  bool ssim_maps, const SweepCoding& coding, const SweepOutput& output) {
+std::vector<SweepRow> sweep_into(const ImageAnalysis& a, const std::vector<int>& ks, const SweepCoding& coding,
+                                 const SweepOutput& settings, SweepImageOutput* output) {
   check_ks(ks, a.basis.rank());
-  std::error_code ec;
-  std::filesystem::create_directories(out_dir, ec);
-  if (ec) throw data_error(out_dir + ": cannot create output folder: " + ec.message());
-  const auto path_in = [&](const std::string& name) { return (std::filesystem::path(out_dir) / name).string(); };
-  const auto image_name = [&](std::size_t source, int k, const char* suffix) {
-    return path_in(output_stem(a.inputs[source]) + ".k" + std::to_string(k) + suffix);
-  };
-  SweepCoding coding_with_files = coding;
+  if (!output) return a.streamed() ? sweep_streamed(a, ks, coding, StreamedSinks{}, settings) : sweep_ks(a, ks, {}, coding);
+  output->open(a);
+  SweepCoding with_files = coding;
   if (coding.enabled) {
-    coding_with_files.on_coded = [&](int k, const std::string& bytes) {
-      write_file_atomic(image_name(0, k, ".pcsc"), bytes);
+    with_files.on_coded = [&](int k, const std::string& bytes) {
+      output->coded(k, bytes);
       if (coding.on_coded) coding.on_coded(k, bytes);
     };
   }
-  std::vector<SweepRow> rows;
-  if (a.streamed()) {
-    // Each distinct reconstruction is written once, row by row; a k that makes the same
-    // coded file as a smaller k gets a copy of that k's images.
-    std::map<int, std::unique_ptr<PngSink>> pngs;
-    std::map<int, std::unique_ptr<SsimMapWriter>> maps;
-    const Image& image = a.image();
-    const bool map_fits = image.width > 2 * kSsimRadius && image.height > 2 * kSsimRadius;
-    StreamedSinks sinks;
-    sinks.for_k = [&](int k) -> std::vector<RowSink*> {
-      auto& p = pngs[k];
-      p = std::make_unique<PngSink>(image_name(0, k, ".png"), image, output.png);
-      return {p.get()};
-    };
-    if (ssim_maps && map_fits) {
-      sinks.ssim_map_for_k = [&](int k) -> std::function<void(int, const float*)> {
-        auto& m = maps[k];
-        m = std::make_unique<SsimMapWriter>(image_name(0, k, ".ssim.png"), image.width - 2 * kSsimRadius,
-                                            image.height - 2 * kSsimRadius, output.png);
-        SsimMapWriter* writer = m.get();
-        return [writer](int, const float* values) { writer->add(values); };
-      };
-    }
-    sinks.after_k = [&](int k, int owner) {
-      if (owner == k) {
-        if (maps.count(k)) maps.at(k)->finish();
-        return;
-      }
-      copy_file_atomic(image_name(0, owner, ".png"), image_name(0, k, ".png"));
-      if (maps.count(owner)) copy_file_atomic(image_name(0, owner, ".ssim.png"), image_name(0, k, ".ssim.png"));
-    };
-    rows = sweep_streamed(a, ks, coding_with_files, sinks, output);
-  } else {
-    rows = sweep_ks(a, ks, [&](int k, std::size_t source, const Image& image) {
-      write_png(image_name(source, k, ".png"), image, output.png);
-      if (ssim_maps) {
-        const SsimResult s = compute_ssim(a.sources[source], image, true);
-        if (!s.map.empty()) write_png(image_name(source, k, ".ssim.png"), ssim_map_image(s), output.png);
-      }
-    }, coding_with_files);
-  }
-  write_file_atomic(path_in("spectrum.csv"), render_csv(spectrum_table(a.basis)));
-  write_file_atomic(path_in("sweep.csv"), render_csv(sweep_table(rows, a.image().channel_names)));
-  nlohmann::json summary = sweep_summary(a, rows, settings);
-  if (extra_summary.is_object())
-    for (const auto& [key, value] : extra_summary.items()) summary[key] = value;
-  write_file_atomic(path_in("summary.json"), summary.dump(2) + "\n");
-  return rows;
+  if (a.streamed()) return sweep_streamed(a, ks, with_files, output->streamed_sinks(a), settings);
+  return sweep_ks(a, ks, [&](int k, std::size_t source, const Image& image) { output->image(k, source, image); },
+                  with_files);
 }
+
+std::string output_stem(const std::string& path) { return std::filesystem::path(path).stem().string(); }
 
 }  // namespace pcasweep

@@ -1,6 +1,7 @@
 // pcasweep/pipeline/image_study.hpp — wires the stages for one image:
-// read -> observe -> solve -> reconstruct -> measure, and lays the numbers
-// out as tables for the report stage.
+// read -> observe -> solve -> reconstruct -> measure, and returns the rows
+// (SweepRow). Tables, summary.json and the files are present/'s
+// (present/sweep_tables.hpp, present/sweep_outputs.hpp).
 //
 // Contract: nothing here does numerical work of its own; it calls the
 // stages in order. Every validation (file, patch, k list) happens before any
@@ -21,7 +22,6 @@
 #include "measure/image_metrics.hpp"
 #include "measure/ssim.hpp"
 #include "observe/patches.hpp"
-#include "report/table.hpp"
 #include "solve/basis.hpp"
 #include "solve/solver.hpp"
 
@@ -146,38 +146,28 @@ std::vector<SweepRow> sweep_streamed(const ImageAnalysis& analysis, const std::v
                                      const SweepCoding& coding, const StreamedSinks& sinks,
                                      const SweepOutput& output = {});
 
-// Columns component, eigenvalue, proportion, cumulative.
-Table spectrum_table(const Basis& basis);
+// Where a sweep's images go as they are made; the presentation stage
+// implements it (present/sweep_outputs.hpp) so that pipeline/ writes no file.
+// sweep_into() calls open() once every k is valid and before the first image,
+// then, for a streamed analysis, streamed_sinks() once, else image() for each
+// k and source; coded() receives each coded file (coding enabled).
+class SweepImageOutput {
+ public:
+  virtual ~SweepImageOutput() = default;
+  virtual void open(const ImageAnalysis& analysis) = 0;
+  virtual StreamedSinks streamed_sinks(const ImageAnalysis& analysis) = 0;
+  virtual void image(int k, std::size_t source, const Image& image) = 0;
+  virtual void coded(int k, const std::string& bytes) = 0;
+};
 
-// Columns k, mse, rmse, psnr_db, ssim, max_abs_error, relative_error, energy_retained,
-// stored_values_estimate, ratio_estimate (numbers kept, not bytes), bytes, coded_components,
-// bits_per_pixel, compression_ratio, ratio_to_png (empty when the sweep did not encode),
-// then psnr_db_<channel> for images with more than one channel.
-Table sweep_table(const std::vector<SweepRow>& rows, const std::vector<std::string>& channel_names);
-
-// Everything about one sweep, with the settings used.
-nlohmann::json sweep_summary(const ImageAnalysis& analysis, const std::vector<SweepRow>& rows,
-                             const nlohmann::json& settings);
+// The sweep of `ks` with its images handed to `output` (not owned; null: they
+// are dropped): streamed analyses through sweep_streamed, held ones through
+// sweep_ks. Rows as sweep_ks(). Throws Error(usage) for a k outside 1..r before
+// output->open(), and whatever `output` throws.
+std::vector<SweepRow> sweep_into(const ImageAnalysis& analysis, const std::vector<int>& ks, const SweepCoding& coding,
+                                 const SweepOutput& settings, SweepImageOutput* output);
 
 // File stem for outputs: "frame.png" -> "frame".
 std::string output_stem(const std::string& path);
-
-}  // namespace pcasweep
-
-namespace pcasweep {
-
-// Runs sweep_ks and writes into `out_dir` (created if missing):
-// <stem>.k<K>.png for each k (16-bit stays 16-bit), spectrum.csv, sweep.csv
-// and summary.json, each written atomically. Returns the rows. With coding
-// enabled also <stem>.k<K>.pcsc, the coded file whose size is the row's bytes
-// and whose decoding is the <stem>.k<K>.png written.
-// extra_summary (optional): an object whose keys are added to summary.json
-// (e.g. "choose_k" from pipeline/k_choice.hpp). ssim_maps: also write
-// <stem>.k<K>.ssim.png, the local SSIM map (gray, 0..1 scaled to 0..255, (H−10)×(W−10)).
-std::vector<SweepRow> write_sweep(const ImageAnalysis& analysis, const std::vector<int>& ks,
-                                  const std::string& out_dir, const nlohmann::json& settings,
-                                  const nlohmann::json& extra_summary = nlohmann::json::object(),
-                                  bool ssim_maps = false, const SweepCoding& coding = {},
-                                  const SweepOutput& output = {});
 
 }  // namespace pcasweep

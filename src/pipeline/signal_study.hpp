@@ -1,10 +1,10 @@
 // pcasweep/pipeline/signal_study.hpp — wires the stages for one recording:
 // read -> window -> solve -> reconstruct -> fold -> requantise -> measure,
-// and lays the numbers out as tables and plots for the report stage.
+// and returns the rows (SignalSweepRow). Tables, plots and files are
+// present/'s (present/signal_outputs.hpp).
 //
-// Contract: nothing here does numerical work of its own beyond choosing
-// which frames a plot shows; it calls the stages in order. Every validation
-// (file, window, hop, k list) happens before any output is written, so a bad
+// Contract: nothing here does numerical work of its own; it calls the
+// stages in order. Every validation (file, window, hop, k list) happens before any output is written, so a bad
 // input leaves no files behind. Metrics are measured on the stored values
 // (rounded and clipped to the input's sample type), i.e. on what is written.
 #pragma once
@@ -18,7 +18,6 @@
 #include "io/signal.hpp"
 #include "measure/signal_metrics.hpp"
 #include "observe/windows.hpp"
-#include "report/table.hpp"
 #include "solve/basis.hpp"
 #include "solve/solver.hpp"
 
@@ -63,28 +62,15 @@ using RecordingSink = std::function<void(const SignalSweepRow& row, const Eigen:
 std::vector<SignalSweepRow> sweep_signal_ks(const SignalAnalysis& analysis, const std::vector<int>& ks,
                                             const RecordingSink& on_recording = {});
 
-// Columns k, rmse, snr_db, prd_percent, prd_mean_removed_percent,
-// max_abs_error, energy_retained, stored_values, ratio, clipped_samples, then
-// for recordings of more than one channel (when `per_channel`) each of the
-// five figures per channel: rmse_<ch>, snr_db_<ch>, prd_percent_<ch>,
-// prd_mean_removed_percent_<ch>, max_abs_error_<ch>.
-Table signal_sweep_table(const std::vector<SignalSweepRow>& rows, const std::vector<std::string>& channel_names,
-                         bool per_channel = true);
-
-// Everything about one sweep, with the settings used.
-nlohmann::json signal_sweep_summary(const SignalAnalysis& analysis, const std::vector<SignalSweepRow>& rows,
-                                    const nlohmann::json& settings);
-
-// The frames a plot shows: `length` frames (≤ T) centred on the frame that
-// strays furthest from its channel mean in units of that channel's standard
-// deviation (an impact, on the demo log). Returns the first frame.
-Eigen::Index excerpt_start(const Signal& signal, Eigen::Index length);
-
-// Runs sweep_signal_ks and writes into `out_dir` (created if missing):
-// <stem>.k<K>.<ext> in the input's format and sample type, <stem>.k<K>.excerpt.svg,
-// spectrum.csv, sweep.csv and summary.json, each atomically. Returns the rows.
-std::vector<SignalSweepRow> write_signal_sweep(const SignalAnalysis& analysis, const std::vector<int>& ks,
-                                               const std::string& out_dir, const nlohmann::json& settings);
+// Where a recording sweep's reconstructions go as they are made; the
+// presentation stage implements it (present/signal_outputs.hpp). open() comes
+// once every k is valid, before the first recording(row, stored T×C).
+class SignalSweepOutput {
+ public:
+  virtual ~SignalSweepOutput() = default;
+  virtual void open(const SignalAnalysis& analysis) = 0;
+  virtual void recording(const SignalSweepRow& row, const Eigen::MatrixXd& stored) = 0;
+};
 
 // True when `path` should go down the signal path: a signal extension
 // (.wav .flac .csv .raw …) or `layout` == "windows".

@@ -5,6 +5,7 @@
 #include <sstream>
 
 #include "core/format.hpp"
+#include "present/sweep_tables.hpp"
 
 namespace pcasweep {
 

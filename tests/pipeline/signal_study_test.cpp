@@ -15,6 +15,7 @@
 #include "core/error.hpp"
 #include "io/atomic_file.hpp"
 #include "pipeline/signal_study.hpp"
+#include "present/signal_outputs.hpp"
 #include "reconstruct/reconstruct.hpp"
 #include "../support/signals.hpp"
 

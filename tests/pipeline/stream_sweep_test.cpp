@@ -15,6 +15,7 @@
 #include "../support/temp_dir.hpp"
 #include "io/png.hpp"
 #include "pipeline/image_study.hpp"
+#include "present/sweep_outputs.hpp"
 
 using namespace pcasweep;
 using pcasweep::testing::scene_image;

@@ -18,6 +18,7 @@
 #include "measure/image_metrics.hpp"
 #include "observe/raster.hpp"
 #include "pipeline/image_study.hpp"
+#include "present/sweep_outputs.hpp"
 #include "reconstruct/reconstruct.hpp"
 
 using namespace pcasweep;
