@@ -39,6 +39,11 @@ inline std::string as_bytes(const std::uint8_t* data, std::size_t size) {
   return std::string(reinterpret_cast<const char*>(data), size);
 }
 
+// `bytes` with its last 4 bytes replaced by the CRC-32 (little-endian) of everything before
+// them, as our container and basis file store it: a mutated file then gets past the checksum
+// and reaches the parser behind it (an input shorter than 4 bytes is returned as it is).
+std::string with_crc_trailer(std::string_view bytes);
+
 // One scratch file per process with a fixed extension (the readers choose the
 // format by it). write() replaces its content; the file is removed at exit.
 class ScratchFile {
