@@ -12,6 +12,7 @@
 #include <vector>
 
 #include "codec/basis_file.hpp"
+#include "codec/basis_check.hpp"
 #include "codec/image_codec.hpp"
 #include "codec/rd_curve.hpp"
 #include "pipeline/image_study.hpp"
@@ -25,18 +26,6 @@ namespace pcasweep {
 // Returns the basis ready for write_basis_file(). Throws Error.
 SavedBasis fit_basis(const std::vector<std::string>& inputs, const ImageStudySettings& settings,
                      BasisTransform transform);
-
-// A basis file loaded for encode/decode, with the SHA-256 of its bytes.
-struct LoadedBasis {
-  SavedBasis saved;
-  Sha256 sha256{};
-};
-LoadedBasis load_basis_file(const std::string& path);
-
-// Throws Error(usage) "<basis>: ..." unless `image` and `patch` fit the basis's geometry
-// (patch size, colour mode, channels, bit depth).
-void check_basis_geometry(const SavedBasis& saved, const Image& image, const PatchOptions& patch,
-                          const std::string& image_name, const std::string& basis_name);
 
 
 // What `encode` asks for: the image settings (patch, reader, solver), the codec's, and the basis.
@@ -63,36 +52,6 @@ struct EncodedFile {
 // for unreadable files.
 EncodedFile encode_image_file(const std::string& input, const EncodeFileSettings& settings);
 
-// The study's points, chosen so that few suffice (each is a whole coded file, decoded and
-// measured once): for PCA and DCT one --quality per target rate, the quality whose Gaussian
-// model rate (quantize.hpp) is nearest to it; for JPEG a fixed grid of its qualities; then,
-// for each rate the report reads (0.5, 1, 2 bits per pixel) that a curve does not bracket,
-// one more point beyond the curve's end (a second, smaller pass).
-struct RdSettings {
-  std::vector<double> target_bits_per_pixel = {0.25, 0.5, 1.0, 2.0, 4.0};
-  std::vector<int> jpeg_qualities = {10, 30, 50, 70, 85, 95};
-  std::vector<double> reported_bits_per_pixel = {0.5, 1.0, 2.0};
-  int zstd_level = 19;
-};
-
-// What a rate-distortion study took (wall seconds on the running machine and
-// threads), reported beside its points: one entry per streaming pass over the
-// image (the PCA and DCT points; a second entry for the refinement pass) and
-// the JPEG points.
-struct RdCost {
-  std::vector<double> coded_pass_seconds;  // each PCA/DCT pass
-  std::vector<int> coded_pass_points;      // points measured in each of those passes
-  double jpeg_seconds = 0.0;               // every JPEG quality: encode, decode, measure (in parallel)
-  int jpeg_points = 0;
-  double total_seconds = 0.0;              // the whole study, bound and sorting included
-};
-
-// One JPEG file the study encoded (and measured), kept for the presentation stage to write.
-struct RdJpegFile {
-  int quality = 0;    // JPEG quality, as in its RdPoint
-  std::string bytes;  // the whole file
-};
-
 // What rate_distortion() returns.
 struct RdStudy {
   std::vector<RdPoint> points;         // each curve by increasing bits per pixel, curves pca, dct, jpeg, bound
@@ -102,7 +61,7 @@ struct RdStudy {
 
 // For analysis with one image and the patches layout: PCA (own basis, k = r) and DCT
 // (k = d) through the codec at the qualities above — every point of both curves in one
-// streaming pass over the image (pipeline/patch_sweep.hpp) — JPEG (libjpeg-turbo, 4:2:0,
+// streaming pass over the image (codec/patch_sweep.hpp) — JPEG (libjpeg-turbo, 4:2:0,
 // optimised Huffman) at each JPEG quality, encoded and decoded row by row, in parallel
 // (the files kept in memory, RdPoint::file left empty), and the Gaussian bound
 // R(D) = Σ ½log2(λ_i/D_i) per observation from the eigenvalues (codec/gaussian_rd.hpp),

@@ -6,7 +6,7 @@
 
 #include "core/error.hpp"
 #include "measure/image_metrics.hpp"
-#include "pipeline/patch_sweep.hpp"
+#include "codec/patch_sweep.hpp"
 
 namespace pcasweep {
 

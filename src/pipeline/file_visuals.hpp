@@ -1,7 +1,7 @@
 // pcasweep/pipeline/file_visuals.hpp — what the report shows of one file, at a bounded size.
 //
 // Contract: file_visuals() makes one streaming pass of the file's patches at
-// k (pipeline/patch_sweep.hpp) and returns, whatever the image size:
+// k (codec/patch_sweep.hpp) and returns, whatever the image size:
 //   - previews: the original, the reconstruction and the error map reduced by
 //     an integer factor s so that the longer side is at most
 //     settings.preview_side (each preview pixel is the mean of an s×s block;

@@ -14,7 +14,7 @@
 #include "observe/patch_blocks.hpp"
 #include "observe/raster.hpp"
 #include "pipeline/image_set.hpp"
-#include "pipeline/patch_sweep.hpp"
+#include "codec/patch_sweep.hpp"
 #include "reconstruct/reconstruct.hpp"
 #include "solve/blocked_operator.hpp"
 
@@ -62,23 +62,7 @@ ImageAnalysis analyze_sources(std::vector<std::string> inputs, std::vector<Image
 
 Eigen::MatrixXd coefficients_of(const ImageAnalysis& a, Eigen::Index k) {
   if (!a.streamed()) return project(a.basis, a.X, k);
-  if (k < 0 || k > a.basis.rank()) throw usage_error("k must be between 0 and " + std::to_string(a.basis.rank()));
-  const PatchBlocks blocks(*a.patches(), a.image());
-  const Eigen::MatrixXd V = a.basis.components.leftCols(k);
-  const Eigen::RowVectorXd shift = a.basis.mean.transpose() * V;
-  Eigen::MatrixXd c(a.observations(), k);
-  RowBlock band;
-  for (Eigen::Index b = 0; b < blocks.block_count(); ++b) {
-    blocks.fill(b, band);
-    RowBlock part = band * V;
-    part.rowwise() -= shift;
-    Eigen::Index at = 0;
-    for (const auto& [first, count] : blocks.segments(b)) {
-      c.middleRows(first, count) = part.middleRows(at, count);
-      at += count;
-    }
-  }
-  return c;
+  return project(a.basis, PatchBlocks(*a.patches(), a.image()), k);
 }
 
 std::vector<int> default_ks(Eigen::Index d) {
@@ -173,132 +157,163 @@ class CollectSink : public RowSink {
   Image image_;
 };
 
+// The points of a streamed sweep: one per k, or, with coding, one per distinct set of
+// coded components (the k whose coded components are the same make the same file but
+// for the k it records, so each set is coded and measured once).
+struct StreamedPlan {
+  std::vector<PatchSweepPoint> points;
+  std::vector<std::size_t> point_of;  // the point each k is measured at
+  std::vector<CodingPlan> plans;      // the points keep pointers into it (reserved)
+  std::optional<DecoderBasis> decoder;
+};
+
+void plan_plain_points(const std::vector<int>& ks, StreamedPlan& plan) {
+  for (int k : ks) {
+    plan.point_of.push_back(plan.points.size());
+    PatchSweepPoint p;
+    p.k = k;
+    plan.points.push_back(p);
+  }
+}
+
+void plan_coded_points(const ImageAnalysis& a, const std::vector<int>& ks, const SweepCoding& coding,
+                       StreamedPlan& plan) {
+  const PatchLayout& layout = *a.patches();
+  const Image& image = a.image();
+  PatchMoments computed;
+  if (!a.moments) computed = patch_moments(layout, image);
+  BasisChoice choice;
+  choice.basis = &a.basis;
+  plan.decoder = decoder_basis(layout, image.bit_depth, a.moments ? *a.moments : computed, choice, a.input());
+  plan.plans.reserve(ks.size());
+  std::map<std::vector<Eigen::Index>, std::size_t> seen;
+  for (int k : ks) {
+    CodecSettings settings;
+    settings.k = k;
+    settings.quality = coding.quality;
+    settings.zstd_level = coding.zstd_level;
+    plan.plans.push_back(plan_coding(layout, image.bit_depth, *plan.decoder, settings, a.input()));
+    const auto [it, fresh] = seen.emplace(plan.plans.back().coded, plan.points.size());
+    plan.point_of.push_back(it->second);
+    if (fresh) {
+      PatchSweepPoint p;
+      p.k = k;
+      p.plan = &plan.plans.back();
+      plan.points.push_back(p);
+    }
+  }
+}
+
+// Row of k = ks[i] from its point's result; with coding, hands its coded file to coding.on_coded.
+SweepRow streamed_row(const ImageAnalysis& a, int k, int owner, const PatchSweepResult& r,
+                      const Eigen::VectorXd& cumulative, const SweepCoding& coding, double png_bytes) {
+  SweepRow row = size_row(a, k, cumulative);
+  row.quality = r.quality;
+  row.ssim = r.ssim.ssim;
+  row.channel_ssim = r.ssim.channel_ssim;
+  row.clipped_samples = r.clipped;
+  if (coding.enabled) {
+    const std::string file = owner == k ? r.encoded.bytes : with_components_asked(r.encoded.bytes, std::uint32_t(k));
+    fill_bytes(row, a.image(), file, png_bytes, r.encoded.coded);
+    if (coding.on_coded) coding.on_coded(k, file);
+  }
+  return row;
+}
+
 }  // namespace
 
 std::vector<SweepRow> sweep_streamed(const ImageAnalysis& a, const std::vector<int>& ks, const SweepCoding& coding,
                                      const StreamedSinks& sinks, const SweepOutput& output) {
   check_ks(ks, a.basis.rank());
-  const PatchLayout* layout = a.patches();
-  if (!a.streamed() || !layout) throw usage_error("internal: a streamed sweep needs one image cut into patches");
-  const Image& image = a.image();
-  const Eigen::VectorXd cumulative = cumulative_proportions(a.basis);
-  PatchSweepInputs in;
-  in.image = &image;
-  in.layout = layout;
-  in.basis = &a.basis;
-  in.ssim_precision = output.ssim_precision;
-  in.codec.zstd_level = coding.zstd_level;
-  std::vector<PatchSweepPoint> points;
-  std::vector<std::size_t> point_of(ks.size());  // the point each k is measured at
-  std::vector<CodingPlan> plans;
-  std::optional<DecoderBasis> decoder;
-  if (coding.enabled) {
-    // Codec at every k: the k whose coded components are the same make the same file
-    // (but for the k it records), so each distinct set is coded and measured once.
-    PatchMoments computed;
-    if (!a.moments) computed = patch_moments(*layout, image);
-    BasisChoice choice;
-    choice.basis = &a.basis;
-    decoder = decoder_basis(*layout, image.bit_depth, a.moments ? *a.moments : computed, choice, a.input());
-    in.decoder_bases = {&*decoder};
-    plans.reserve(ks.size());
-    std::map<std::vector<Eigen::Index>, std::size_t> seen;
-    for (std::size_t i = 0; i < ks.size(); ++i) {
-      CodecSettings settings;
-      settings.k = ks[i];
-      settings.quality = coding.quality;
-      settings.zstd_level = coding.zstd_level;
-      plans.push_back(plan_coding(*layout, image.bit_depth, *decoder, settings, a.input()));
-      const auto [it, fresh] = seen.emplace(plans.back().coded, points.size());
-      point_of[i] = it->second;
-      if (fresh) {
-        PatchSweepPoint p;
-        p.k = ks[i];
-        p.plan = &plans.back();
-        points.push_back(p);
-      }
-    }
-  } else {
-    for (std::size_t i = 0; i < ks.size(); ++i) {
-      point_of[i] = points.size();
-      PatchSweepPoint p;
-      p.k = ks[i];
-      points.push_back(p);
-    }
-  }
-  for (auto& p : points) {
+  if (!a.streamed() || !a.patches()) throw usage_error("internal: a streamed sweep needs one image cut into patches");
+  StreamedPlan plan;
+  if (coding.enabled) plan_coded_points(a, ks, coding, plan);
+  else plan_plain_points(ks, plan);
+  for (auto& p : plan.points) {
     if (sinks.for_k) p.sinks = sinks.for_k(p.k);
     if (sinks.ssim_map_for_k) p.on_ssim_map_row = sinks.ssim_map_for_k(p.k);
   }
-  const std::vector<PatchSweepResult> results = run_patch_sweep(in, points);
+  PatchSweepInputs in;
+  in.image = &a.image();
+  in.layout = a.patches();
+  in.basis = &a.basis;
+  in.ssim_precision = output.ssim_precision;
+  in.codec.zstd_level = coding.zstd_level;
+  if (plan.decoder) in.decoder_bases = {&*plan.decoder};
+  const std::vector<PatchSweepResult> results = run_patch_sweep(in, plan.points);
+  const Eigen::VectorXd cumulative = cumulative_proportions(a.basis);
   const double png_bytes = coding.enabled ? lossless_png_bytes(a) : 0.0;
   std::vector<SweepRow> rows;
   for (std::size_t i = 0; i < ks.size(); ++i) {
-    const PatchSweepResult& r = results[point_of[i]];
-    SweepRow row = size_row(a, ks[i], cumulative);
-    row.quality = r.quality;
-    row.ssim = r.ssim.ssim;
-    row.channel_ssim = r.ssim.channel_ssim;
-    row.clipped_samples = r.clipped;
-    if (coding.enabled) {
-      const int owner = points[point_of[i]].k;
-      const std::string file = owner == ks[i] ? r.encoded.bytes : with_components_asked(r.encoded.bytes, std::uint32_t(ks[i]));
-      fill_bytes(row, image, file, png_bytes, r.encoded.coded);
-      if (coding.on_coded) coding.on_coded(ks[i], file);
-    }
-    if (sinks.after_k) sinks.after_k(ks[i], points[point_of[i]].k);
-    rows.push_back(std::move(row));
+    const int owner = plan.points[plan.point_of[i]].k;
+    rows.push_back(streamed_row(a, ks[i], owner, results[plan.point_of[i]], cumulative, coding, png_bytes));
+    if (sinks.after_k) sinks.after_k(ks[i], owner);
   }
   return rows;
 }
 
+namespace {
+
+// The streamed sweep with each k's image collected whole for `on_image` (it costs an image's memory).
+std::vector<SweepRow> sweep_collected(const ImageAnalysis& a, const std::vector<int>& ks, const ImageSink& on_image,
+                                      const SweepCoding& coding) {
+  std::map<int, std::unique_ptr<CollectSink>> collected;
+  StreamedSinks sinks;
+  if (on_image) {
+    sinks.for_k = [&](int k) -> std::vector<RowSink*> {
+      auto& c = collected[k];
+      c = std::make_unique<CollectSink>(a.image());
+      return {c.get()};
+    };
+    sinks.after_k = [&](int k, int owner) { on_image(k, 0, collected.at(owner)->image()); };
+  }
+  return sweep_streamed(a, ks, coding, sinks, SweepOutput{});
+}
+
+// Real bytes in memory: encodes the image at k with its own basis and returns what the decoder gives back.
+Image coded_image(const ImageAnalysis& a, int k, const SweepCoding& coding, double png_bytes, SweepRow& row) {
+  CodecSettings settings;
+  settings.k = k;
+  settings.quality = coding.quality;
+  settings.zstd_level = coding.zstd_level;
+  BasisChoice choice;
+  choice.basis = &a.basis;
+  const EncodeResult encoded = encode_image(a.image(), a.patches()->options(), choice, settings, a.input());
+  Image decoded = decode_coded_image(encoded.bytes, a.input(), nullptr, nullptr, &row.clipped_samples);
+  fill_bytes(row, a.image(), encoded.bytes, png_bytes, encoded.coded);
+  if (coding.on_coded) coding.on_coded(k, encoded.bytes);
+  return decoded;
+}
+
+// X̂_k folded, rounded and clipped: one image per source; clipped samples counted in `row`.
+std::vector<Image> folded_images(const ImageAnalysis& a, const Eigen::MatrixXd& xk, SweepRow& row) {
+  const std::vector<Raster> folded = a.layout->fold(xk);
+  std::vector<Image> written;
+  for (std::size_t i = 0; i < folded.size(); ++i) {
+    std::size_t clipped = 0;
+    written.push_back(quantize(folded[i], a.sources[i], &clipped));
+    row.clipped_samples += clipped;
+  }
+  return written;
+}
+
+}  // namespace
+
 std::vector<SweepRow> sweep_ks(const ImageAnalysis& a, const std::vector<int>& ks, const ImageSink& on_image,
                                const SweepCoding& coding) {
   check_ks(ks, a.basis.rank());
-  if (a.streamed()) {
-    std::map<int, std::unique_ptr<CollectSink>> collected;
-    StreamedSinks sinks;
-    if (on_image) {
-      sinks.for_k = [&](int k) -> std::vector<RowSink*> {
-        auto& c = collected[k];
-        c = std::make_unique<CollectSink>(a.image());
-        return {c.get()};
-      };
-      sinks.after_k = [&](int k, int owner) { on_image(k, 0, collected.at(owner)->image()); };
-    }
-    return sweep_streamed(a, ks, coding, sinks, SweepOutput{});
-  }
+  if (a.streamed()) return sweep_collected(a, ks, on_image, coding);
   // In memory: X held (whole, bands, or patches held for comparison).
   const Eigen::VectorXd cumulative = cumulative_proportions(a.basis);
   ReconstructionSweep sweep(a.basis, a.X);
   // The codec handles one image cut into patches; other layouts keep the unquantised path.
-  const PatchLayout* coded_layout = coding.enabled && a.sources.size() == 1 ? a.patches() : nullptr;
-  const double png_bytes = coded_layout ? lossless_png_bytes(a) : 0.0;
+  const bool coded = coding.enabled && a.sources.size() == 1 && a.patches();
+  const double png_bytes = coded ? lossless_png_bytes(a) : 0.0;
   std::vector<SweepRow> rows;
   for (int k : ks) {
     SweepRow row = size_row(a, k, cumulative);
-    std::vector<Image> written;
-    if (coded_layout) {
-      // Real bytes: encode with the image's own basis, then measure what the decoder gives back.
-      CodecSettings settings;
-      settings.k = k;
-      settings.quality = coding.quality;
-      settings.zstd_level = coding.zstd_level;
-      BasisChoice choice;
-      choice.basis = &a.basis;
-      const EncodeResult encoded = encode_image(a.image(), coded_layout->options(), choice, settings, a.input());
-      written.push_back(decode_coded_image(encoded.bytes, a.input(), nullptr, nullptr, &row.clipped_samples));
-      fill_bytes(row, a.image(), encoded.bytes, png_bytes, encoded.coded);
-      if (coding.on_coded) coding.on_coded(k, encoded.bytes);
-    } else {
-      const Eigen::MatrixXd& xk = sweep.advance_to(k);
-      const std::vector<Raster> folded = a.layout->fold(xk);
-      for (std::size_t i = 0; i < folded.size(); ++i) {
-        std::size_t clipped = 0;
-        written.push_back(quantize(folded[i], a.sources[i], &clipped));
-        row.clipped_samples += clipped;
-      }
-    }
+    const std::vector<Image> written =
+        coded ? std::vector<Image>{coded_image(a, k, coding, png_bytes, row)} : folded_images(a, sweep.advance_to(k), row);
     row.quality = compare_image_sets(a.sources, written);
     const SsimResult structural = compute_ssim_sets(a.sources, written);
     row.ssim = structural.ssim;

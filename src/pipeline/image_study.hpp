@@ -113,7 +113,7 @@ struct SweepRow {
 // With coding enabled (sweep_cmd does; the library default is off) and one image cut into patches, each k is encoded
 // (codec/image_codec.hpp, own basis, --quality) and the quality is measured on the DECODED
 // image; `coding.on_coded(k, bytes)` receives each file. Otherwise X̂_k is measured unquantised.
-// Streamed patches go through one pass of pipeline/patch_sweep.hpp for every k;
+// Streamed patches go through one pass of codec/patch_sweep.hpp for every k;
 // held observations through the in-memory path (reconstruct/, Layout::fold).
 using ImageSink = std::function<void(int k, std::size_t source, const Image& image)>;
 struct SweepCoding {
@@ -131,7 +131,7 @@ struct SweepOutput {
 std::vector<SweepRow> sweep_ks(const ImageAnalysis& analysis, const std::vector<int>& ks,
                                const ImageSink& on_image = {}, const SweepCoding& coding = {});
 
-class RowSink;  // pipeline/patch_sweep.hpp
+class RowSink;  // codec/patch_sweep.hpp
 // Where a streamed sweep's rows go. A k whose coded file repeats a smaller k's
 // components is not reconstructed again: only its `owner` k gets sinks.
 struct StreamedSinks {
@@ -141,7 +141,7 @@ struct StreamedSinks {
 };
 
 // The streamed sweep of one image cut into patches (analysis.streamed()): one
-// pass of pipeline/patch_sweep.hpp for every k, rows to `sinks`. Rows as sweep_ks().
+// pass of codec/patch_sweep.hpp for every k, rows to `sinks`. Rows as sweep_ks().
 std::vector<SweepRow> sweep_streamed(const ImageAnalysis& analysis, const std::vector<int>& ks,
                                      const SweepCoding& coding, const StreamedSinks& sinks,
                                      const SweepOutput& output = {});

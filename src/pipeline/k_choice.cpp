@@ -7,7 +7,7 @@
 #include "measure/image_metrics.hpp"
 #include "measure/ssim.hpp"
 #include "observe/patches.hpp"
-#include "pipeline/patch_sweep.hpp"
+#include "codec/patch_sweep.hpp"
 #include "reconstruct/reconstruct.hpp"
 
 namespace pcasweep {
@@ -17,7 +17,7 @@ std::vector<KQuality> evaluate_ks(const ImageAnalysis& a, const std::vector<int>
     if (k < 1 || k > a.basis.rank()) throw usage_error("evaluate_k: k = " + std::to_string(k) + " out of range");
   std::vector<KQuality> out;
   if (a.streamed()) {
-    // One streaming pass measures every k (pipeline/patch_sweep.hpp).
+    // One streaming pass measures every k (codec/patch_sweep.hpp).
     PatchSweepInputs in;
     in.image = &a.image();
     in.layout = a.patches();

@@ -8,7 +8,7 @@
 #include "io/atomic_file.hpp"
 #include "io/png.hpp"
 #include "measure/ssim.hpp"
-#include "pipeline/patch_sweep.hpp"
+#include "codec/patch_sweep.hpp"
 #include "present/component_images.hpp"
 #include "present/k_charts.hpp"
 #include "present/k_rules.hpp"

@@ -40,4 +40,23 @@ const Eigen::MatrixXd& ReconstructionSweep::advance_to(Eigen::Index k) {
   return current_;
 }
 
+Eigen::MatrixXd project(const Basis& basis, const ObservationBlocks& blocks, Eigen::Index k) {
+  if (k < 0 || k > basis.rank()) throw usage_error("k must be between 0 and " + std::to_string(basis.rank()));
+  const Eigen::MatrixXd V = basis.components.leftCols(k);
+  const Eigen::RowVectorXd shift = basis.mean.transpose() * V;
+  Eigen::MatrixXd c(blocks.rows(), k);
+  RowBlock band;
+  for (Eigen::Index b = 0; b < blocks.block_count(); ++b) {
+    blocks.fill(b, band);
+    RowBlock part = band * V;
+    part.rowwise() -= shift;
+    Eigen::Index at = 0;
+    for (const auto& [first, count] : blocks.segments(b)) {
+      c.middleRows(first, count) = part.middleRows(at, count);
+      at += count;
+    }
+  }
+  return c;
+}
+
 }  // namespace pcasweep

@@ -8,6 +8,7 @@
 
 #include <Eigen/Dense>
 
+#include "observe/observation_blocks.hpp"
 #include "solve/basis.hpp"
 
 namespace pcasweep {
@@ -15,6 +16,11 @@ namespace pcasweep {
 // X: N×d, basis of dimension d with r components. Returns C = (X − 1μᵀ)V[:, :k], N×k.
 // k <= r. Throws Error(usage) on a shape mismatch or k out of range.
 Eigen::MatrixXd project(const Basis& basis, const Eigen::MatrixXd& X, Eigen::Index k);
+
+// The same for X given in blocks of rows (observe/observation_blocks.hpp), never held:
+// C = (X − 1μᵀ)V[:, :k], N×k, rows in X's order. Holds N×k. Throws Error(usage) for k
+// outside 0..r.
+Eigen::MatrixXd project(const Basis& basis, const ObservationBlocks& X, Eigen::Index k);
 
 // C: N×k coefficients. Returns X̂ = C·V[:, :k]ᵀ + 1μᵀ, N×d.
 Eigen::MatrixXd reconstruct(const Basis& basis, const Eigen::MatrixXd& coefficients);

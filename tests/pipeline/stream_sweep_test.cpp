@@ -1,4 +1,4 @@
-// The streaming sweep (pipeline/patch_sweep.hpp: bands of patch rows, SSIM
+// The streaming sweep (codec/patch_sweep.hpp: bands of patch rows, SSIM
 // carried between bands, rows written as they are made) against the in-memory
 // path (the whole N×d matrix, reconstruct/'s ReconstructionSweep,
 // Layout::fold, quantize, compare_image_sets and compute_ssim_sets on whole

@@ -1,4 +1,4 @@
-#include "pipeline/patch_sweep.hpp"
+#include "codec/patch_sweep.hpp"
 
 #include <omp.h>
 

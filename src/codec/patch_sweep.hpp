@@ -1,4 +1,4 @@
-// pcasweep/pipeline/patch_sweep.hpp — every reconstruction of one image in one streaming pass.
+// pcasweep/codec/patch_sweep.hpp — every reconstruction of one image in one streaming pass.
 //
 // Contract: run_patch_sweep() walks the image's bands of patch rows
 // (observe/patch_blocks.hpp) once, top to bottom, and for each band makes
@@ -18,6 +18,11 @@
 // parallel within a band; a point's sinks are called from one thread at a
 // time, in row order. Memory: the image plus O(points·band·width) and the
 // coded bytes; never N×d or a whole reconstruction.
+//
+// Why in codec/: the pass reconstructs (reconstruct/), codes (image_codec.hpp)
+// and measures (measure/) each band; codec/ is the lowest stage that may call
+// all three, and the pass is numerical work, not wiring. pipeline/ (the sweep,
+// the rules for k, the RD study, the report's visuals) runs it.
 #pragma once
 
 #include <cstdint>
