@@ -64,6 +64,25 @@ void for_each_point(std::size_t n, F&& f) {
   if (failure) std::rethrow_exception(failure);
 }
 
+// After the last band: each point's figures, its coded file, and its sinks finished.
+std::vector<PatchSweepResult> finish_points(std::vector<PointState>& state, const Image& image) {
+  std::vector<PatchSweepResult> results(state.size());
+  for_each_point(state.size(), [&](std::size_t i) {
+    PointState& s = state[i];
+    PatchSweepResult& r = results[i];
+    r.quality = s.quality->result();
+    if (s.ssim) r.ssim = s.ssim->result();
+    else {
+      r.ssim.ssim = std::numeric_limits<double>::quiet_NaN();
+      r.ssim.channel_ssim.assign(std::size_t(image.channels), std::numeric_limits<double>::quiet_NaN());
+    }
+    r.clipped = s.clipped;
+    if (s.encoder) r.encoded = s.encoder->finish();
+    for (RowSink* sink : s.spec->sinks) sink->finish();
+  });
+  return results;
+}
+
 }  // namespace
 
 std::vector<PatchSweepResult> run_patch_sweep(const PatchSweepInputs& in, const std::vector<PatchSweepPoint>& points) {
@@ -131,21 +150,7 @@ std::vector<PatchSweepResult> run_patch_sweep(const PatchSweepInputs& in, const 
       measure_band(s, image);
     });
   }
-  std::vector<PatchSweepResult> results(points.size());
-  for_each_point(points.size(), [&](std::size_t i) {
-    PointState& s = state[i];
-    PatchSweepResult& r = results[i];
-    r.quality = s.quality->result();
-    if (s.ssim) r.ssim = s.ssim->result();
-    else {
-      r.ssim.ssim = std::numeric_limits<double>::quiet_NaN();
-      r.ssim.channel_ssim.assign(std::size_t(image.channels), std::numeric_limits<double>::quiet_NaN());
-    }
-    r.clipped = s.clipped;
-    if (s.encoder) r.encoded = s.encoder->finish();
-    for (RowSink* sink : s.spec->sinks) sink->finish();
-  });
-  return results;
+  return finish_points(state, image);
 }
 
 }  // namespace pcasweep
