@@ -24,7 +24,7 @@ struct BatchArgs {
   double train_fraction = 0.2;
   int threads = 0;
   double coverage = 95.0;
-  double target_psnr = 40.0;
+  double target_psnr = kDefaultBatchTargetPsnr;
   double target_ssim = -1.0;
   int report_sample = 6;
   bool no_report = false;

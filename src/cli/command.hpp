@@ -13,6 +13,10 @@ namespace pcasweep::cli {
 
 using Action = std::function<int()>;
 
+// batch's quality goal when none is given (--target-psnr, dB; --coverage keeps
+// CoverageTarget's 95 %), shared with demo's batch so the two recommend alike.
+inline constexpr double kDefaultBatchTargetPsnr = 40.0;
+
 struct Command {
   const char* name;
   const char* summary;

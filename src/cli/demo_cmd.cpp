@@ -92,6 +92,7 @@ int demo_batch(const std::vector<std::string>& images, const ImageStudySettings&
   BatchSettings batch;
   batch.image = settings;
   batch.threads = 1;
+  batch.target.psnr_db = kDefaultBatchTargetPsnr;  // as `batch` with no --target-psnr
   batch.settings_json = image_settings_json(settings);
   batch.settings_json["inputs"] = images;
   batch.settings_json["layout_text"] = "8x8 patches (default), per-file basis";

@@ -19,6 +19,8 @@ Checks, each against something outside pcasweep:
      from the training files' pooled patches only.
   5. streaming: peak RSS (ru_maxrss of the child, from os.wait4) of a batch of 200
      generated images stays within a bound set from a one-file batch's footprint.
+  6. demo: its batch over the constructed files recommends the k numpy finds for batch's
+     default goal (40 dB PSNR in 95 % of the files).
 Images are written as PGM (a plain binary format the reader supports) by this script.
 """
 import csv
@@ -245,6 +247,24 @@ print(f"     peak RSS: idle {rss_idle} KiB, 1 file {rss1} KiB (footprint {one_fi
       f"bound {bound} KiB")
 check(rc1 == 0 and rc200 == 0, "both streaming runs succeed")
 check(rss200 <= bound, f"200-file batch peak RSS {rss200} KiB <= {bound} KiB")
+
+# ---- 6. demo's batch recommends with batch's default goal (40 dB for 95 % of files) --
+# The same constructed files as a samples folder: the recommendation in demo's
+# batch/summary.json equals the smallest default k (1, 2, 4, ... 64) at which numpy's own
+# reconstruction reaches 40 dB in at least 95 % of the files.
+out6 = os.path.join(tmp, "o6")
+r = run(["demo", "--samples", detail, "--out", out6])
+check(r.returncode == 0, f"demo on the constructed files runs: exit {r.returncode} {r.stderr.strip()}")
+default_ks = [1, 2, 4, 8, 16, 32, 64]
+want_k = None
+for k in default_ks:
+    share = np.mean([psnr_at(img, *pca(patches(img)), k) >= 40.0 for img in images.values()])
+    if share >= 0.95 - 1e-12:
+        want_k = k
+        break
+rec6 = json.load(open(os.path.join(out6, "batch", "summary.json")))["recommendation"]
+check(rec6["found"] and rec6["k"] == want_k,
+      f"demo's batch recommends k = {rec6.get('k')}, numpy's smallest k at 40 dB for 95 % is {want_k}")
 
 print(f"{len(failures)} failed" if failures else "all batch checks passed")
 sys.exit(1 if failures else 0)
