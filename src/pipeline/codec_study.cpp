@@ -71,9 +71,7 @@ SavedBasis fit_basis(const std::vector<std::string>& inputs, const ImageStudySet
       saved.report.solver = "dct";
       saved.report.reason = "fixed orthonormal DCT-II basis, columns sorted by the data's coefficient variance";
     } else {
-      SolverSettings exact = settings.solver;
-      exact.choice = SolverChoice::exact;
-      Solution solved = solve(sum, nullptr, 1.0, exact);
+      Solution solved = solve_scatter(sum, settings.solver);
       saved.basis = std::move(solved.basis);
       saved.report = std::move(solved.report);
       if (settings.solver.choice == SolverChoice::automatic)

@@ -5,16 +5,16 @@
 
 namespace pcasweep {
 
-Solution solve_exact(const CenteredOperator& op) {
-  const Eigen::Index n = op.rows();
+Solution solve_exact(const ScatterSource& source) {
+  const Eigen::Index n = source.rows();
   if (n < 2) throw data_error("need at least 2 observations to estimate a covariance, got " + std::to_string(n));
   const double denom = double(n - 1);
-  Eigen::MatrixXd covariance = op.scatter() / denom;
+  Eigen::MatrixXd covariance = source.scatter() / denom;
 
   Basis basis;
-  basis.mean = op.mean();
+  basis.mean = source.mean();
   basis.observation_count = n;
-  basis.variable_variances = op.column_sums_of_squares() / denom;
+  basis.variable_variances = source.column_sums_of_squares() / denom;
   basis.total_variance = basis.variable_variances.sum();
 
   SymmetricEigen eig = symmetric_eigen(covariance, true);

@@ -2,15 +2,18 @@
 //
 // Contract: a CenteredOperator stands for the centred data matrix
 // A_c = A − 1·μᵀ (A: N×d observations, μ: d column means) without ever
-// forming it. Solvers ask for products with blocks of vectors and for the
-// scatter matrix; in-memory data, streamed files and distributed shards are
-// then different operators behind the same solvers. Products come back in
-// double whatever precision they were computed in; unit_roundoff() tells the
-// solver which (it sets the solver's noise floors from it).
+// forming it. It is a ScatterSource (solve/scatter_source.hpp: N, d, μ, the
+// scatter matrix) that also makes products with blocks of vectors, which the
+// randomized solver asks for; in-memory data, streamed files and distributed
+// shards are then different operators behind the same solvers. Products come
+// back in double whatever precision they were computed in; unit_roundoff()
+// tells the solver which (it sets the solver's noise floors from it).
 #pragma once
 
 #include <Eigen/Dense>
 #include <string>
+
+#include "solve/scatter_source.hpp"
 
 namespace pcasweep {
 
@@ -18,24 +21,12 @@ namespace pcasweep {
 inline constexpr double kDoubleRoundoff = 0x1p-53;
 inline constexpr double kSingleRoundoff = 0x1p-24;
 
-class CenteredOperator {
+class CenteredOperator : public ScatterSource {
  public:
-  virtual ~CenteredOperator() = default;
-  // N, the number of observations.
-  virtual Eigen::Index rows() const = 0;
-  // d, the number of variables.
-  virtual Eigen::Index cols() const = 0;
-  // μ, the d column means.
-  virtual const Eigen::VectorXd& mean() const = 0;
   // Ω: d×l. Returns A_c·Ω, N×l.
   virtual Eigen::MatrixXd apply(const Eigen::MatrixXd& omega) const = 0;
   // Y: N×l. Returns A_cᵀ·Y, d×l.
   virtual Eigen::MatrixXd apply_transpose(const Eigen::MatrixXd& y) const = 0;
-  // Returns the scatter matrix A_cᵀ·A_c, d×d (= (N−1)·covariance).
-  virtual Eigen::MatrixXd scatter() const = 0;
-  // Returns the d per-variable sums of squares of A_c (the scatter's diagonal),
-  // computed directly; their sum is ‖A_c‖²_F = (N−1)·trace(covariance).
-  virtual Eigen::VectorXd column_sums_of_squares() const = 0;
   // Unit roundoff of the arithmetic apply() and apply_transpose() run in:
   // 2⁻⁵³ (double, the default) or 2⁻²⁴ (single).
   virtual double unit_roundoff() const { return kDoubleRoundoff; }

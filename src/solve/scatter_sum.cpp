@@ -1,14 +1,12 @@
 #include "solve/scatter_sum.hpp"
 
-#include <stdexcept>
-
 #include "core/error.hpp"
 
 namespace pcasweep {
 
 ScatterSum::ScatterSum(Eigen::Index d) : mean_(Eigen::VectorXd::Zero(d)), scatter_(Eigen::MatrixXd::Zero(d, d)) {}
 
-void ScatterSum::add(const CenteredOperator& block) {
+void ScatterSum::add(const ScatterSource& block) {
   if (block.cols() != mean_.size()) {
     throw usage_error("a file has d = " + std::to_string(block.cols()) + " variables per observation, the shared basis " +
                       std::to_string(mean_.size()));
@@ -29,14 +27,6 @@ void ScatterSum::add(const CenteredOperator& block) {
     n_ += nb;
   }
   ++blocks_;
-}
-
-Eigen::MatrixXd ScatterSum::apply(const Eigen::MatrixXd&) const {
-  throw std::logic_error("ScatterSum keeps no observations: only the exact solver can use it");
-}
-
-Eigen::MatrixXd ScatterSum::apply_transpose(const Eigen::MatrixXd&) const {
-  throw std::logic_error("ScatterSum keeps no observations: only the exact solver can use it");
 }
 
 }  // namespace pcasweep

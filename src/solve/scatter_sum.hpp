@@ -5,32 +5,28 @@
 // added so far, merging each block with the pairwise update of Chan, Golub and
 // LeVeque (1979): for blocks a and b with δ = μ_b − μ_a and n = n_a + n_b,
 //   μ = μ_a + δ·n_b/n,   M = M_a + M_b + δδᵀ·n_a·n_b/n.
-// Each block's own M_b comes from its CenteredOperator (centred in blocks, no
-// AᵀA − nμμᵀ cancellation). Memory is O(d²), whatever the number of files.
-// As a CenteredOperator it offers only what the exact solver asks for
-// (mean, scatter, column sums of squares); apply/apply_transpose throw,
-// because no observation is kept.
+// Each block's own M_b comes from its ScatterSource (an operator centres in
+// blocks: no AᵀA − nμμᵀ cancellation). Memory is O(d²), whatever the number
+// of files. It keeps no observation, so it is a ScatterSource only (what the
+// exact solver asks for), never an operator with products.
 #pragma once
 
-#include "solve/operator.hpp"
+#include "solve/scatter_source.hpp"
 
 namespace pcasweep {
 
-class ScatterSum : public CenteredOperator {
+class ScatterSum : public ScatterSource {
  public:
   // d: the number of variables every added block must have.
   explicit ScatterSum(Eigen::Index d);
 
-  // block: the centred view of one file's observations (n_b×d). Throws
-  // Error(usage) if its d differs.
-  void add(const CenteredOperator& block);
+  // block: the second moments of one file's observations (n_b×d), usually its
+  // operator. Throws Error(usage) if its d differs.
+  void add(const ScatterSource& block);
 
   Eigen::Index rows() const override { return n_; }
   Eigen::Index cols() const override { return mean_.size(); }
   const Eigen::VectorXd& mean() const override { return mean_; }
-  // Not available: throws std::logic_error (no observations are kept).
-  Eigen::MatrixXd apply(const Eigen::MatrixXd& omega) const override;
-  Eigen::MatrixXd apply_transpose(const Eigen::MatrixXd& y) const override;
   // Returns M, d×d.
   Eigen::MatrixXd scatter() const override { return scatter_; }
   // Returns diag(M), d.

@@ -114,6 +114,16 @@ Solution solve(const CenteredOperator& op, const SolverSettings& settings) {
   return run(op, plan_solve(op.rows(), op.cols(), settings), settings);
 }
 
+Solution solve_scatter(const ScatterSource& source, const SolverSettings& settings) {
+  SolverSettings exact = settings;
+  exact.choice = SolverChoice::exact;
+  const Plan plan = plan_solve(source.rows(), source.cols(), exact);
+  Solution solution = solve_exact(source);
+  solution.report.reason = plan.reason;
+  solution.report.precision = "double";
+  return solution;
+}
+
 bool precision_suffices(const Basis& basis, double unit_roundoff) {
   if (unit_roundoff <= kDoubleRoundoff) return true;
   return variance_beyond_rank(basis) >= kSingleTailMargin * unit_roundoff * basis.total_variance;

@@ -89,6 +89,13 @@ SolverChoice parse_solver_choice(const std::string& text);
 // large for memory.
 Solution solve(const CenteredOperator& op, const SolverSettings& settings);
 
+// source: N×d moments only (a ScatterSum, say: no products). Runs the exact
+// solver, whatever settings.choice says, under solve()'s checks for
+// --solver exact; report.reason as solve() gives it then. Throws Error(data)
+// for N < 2, Error(usage) for a rank above min(N, d) or d×d matrices too large
+// for memory.
+Solution solve_scatter(const ScatterSource& source, const SolverSettings& settings);
+
 // basis: from an operator whose products round at unit_roundoff. Returns
 // whether that rounding leaves the rank-r error within about 1e-3 of optimal
 // (kSingleTailMargin): always true for double.
