@@ -52,6 +52,7 @@
 #endif
 
 #include "core/error.hpp"
+#include "core/thread_guard.hpp"
 #include "io/atomic_file.hpp"
 #include "io/image.hpp"
 #include "io/png.hpp"
@@ -516,12 +517,11 @@ int mode_png(const std::map<std::string, std::string>& named) {
                                 std::to_string(c.threads) + " " + c.extra.dump();
       if (!only.empty() && label.find(only) == std::string::npos) continue;
       const std::string path = (out_dir / (name + ".png")).string();
-      const int threads_before = omp_get_max_threads();
-      omp_set_num_threads(c.threads);
       const double load = load_average();
       std::vector<double> wall, cpu;
       long extra_kb = 0;
       for (int r = 0; r < repeat; ++r) {
+        const ThreadGuard threads({.openmp = c.threads});
         const long rss_before = status_kb("VmRSS:");
         reset_peak_rss();
         const double c0 = cpu_seconds();
@@ -531,7 +531,6 @@ int mode_png(const std::map<std::string, std::string>& named) {
         cpu.push_back(cpu_seconds() - c0);
         extra_kb = std::max(extra_kb, status_kb("VmHWM:") - rss_before);
       }
-      omp_set_num_threads(threads_before);
       const std::uintmax_t bytes = fs::file_size(path);
       bool same = false;
       try {

@@ -27,6 +27,7 @@
 #include <vector>
 
 #include "core/error.hpp"
+#include "core/thread_guard.hpp"
 #include "core/random.hpp"
 #include "io/image.hpp"
 #include "measure/image_metrics.hpp"
@@ -247,7 +248,7 @@ int mode_ssim(int width, int height, int channels, const std::string& bits_list,
     Image x, y;
     make_pair(width, height, channels, bits, x, y);
     for (int threads : int_list(threads_list)) {
-      omp_set_num_threads(threads);
+      const ThreadGuard guard({.openmp = threads});
       double legacy_value = 0;
       const double t_legacy = time_median(repeat, [&] { legacy_value = legacy::compute_ssim(x, y); });
       struct Variant {

@@ -12,10 +12,6 @@
 #include <set>
 #include <thread>
 
-#ifdef _OPENMP
-#include <omp.h>
-#endif
-
 #include "core/error.hpp"
 #include "pipeline/batch_detail.hpp"
 #include "observe/patch_blocks.hpp"
@@ -278,9 +274,7 @@ void sweep_file(FileResult& f, const BatchSettings& settings, const SharedBasisI
 // has an error (a training file that could not be read) is not tried again.
 void sweep_worker(BatchResult& result, const BatchSettings& settings, std::atomic<std::size_t>& next,
                   std::mutex& mutex, BatchProgress& state, const BatchProgressFn& progress) {
-#ifdef _OPENMP
-  omp_set_num_threads(1);
-#endif
+  const ThreadGuard one_thread({.openmp = 1});  // this worker's own OpenMP teams
   const SharedBasisInfo* shared = result.shared ? &*result.shared : nullptr;
   for (std::size_t i; (i = next.fetch_add(1)) < result.files.size();) {
     FileResult& f = result.files[i];

@@ -4,42 +4,20 @@
 #include <Eigen/Core>
 #include <string>
 #include <vector>
-#ifdef _OPENMP
-#include <omp.h>
-#endif
 
+#include "core/thread_guard.hpp"
 #include "pipeline/batch.hpp"
 
 namespace pcasweep::detail {
 
 // While alive: Eigen's products on one thread and, when `openmp` is set, this
 // thread's OpenMP teams of one; both settings are restored on destruction,
-// also when an exception leaves the scope. (The batch runs files in parallel,
-// so the linear algebra inside each must not start threads of its own.)
-class SerialLinearAlgebra {
+// also when an exception leaves the scope (a ThreadGuard, core/thread_guard.hpp).
+// (The batch runs files in parallel, so the linear algebra inside each must
+// not start threads of its own.)
+class SerialLinearAlgebra : public ThreadGuard {
  public:
-  explicit SerialLinearAlgebra(bool openmp) : eigen_before_(Eigen::nbThreads()), openmp_(openmp) {
-    Eigen::setNbThreads(1);
-#ifdef _OPENMP
-    if (openmp_) {
-      omp_before_ = omp_get_max_threads();
-      omp_set_num_threads(1);
-    }
-#endif
-  }
-  ~SerialLinearAlgebra() {
-    Eigen::setNbThreads(eigen_before_);
-#ifdef _OPENMP
-    if (openmp_) omp_set_num_threads(omp_before_);
-#endif
-  }
-  SerialLinearAlgebra(const SerialLinearAlgebra&) = delete;
-  SerialLinearAlgebra& operator=(const SerialLinearAlgebra&) = delete;
-
- private:
-  int eigen_before_;
-  bool openmp_;
-  int omp_before_ = 1;
+  explicit SerialLinearAlgebra(bool openmp) : ThreadGuard({.openmp = openmp ? 1 : 0, .eigen = 1}) {}
 };
 
 // requested: the --k list (empty: default_ks(rank)). Returns the ks for a file

@@ -10,6 +10,7 @@
 
 #include "../support/synthetic.hpp"
 #include "core/error.hpp"
+#include "core/thread_guard.hpp"
 #include "measure/image_metrics.hpp"
 
 using namespace pcasweep;
@@ -185,12 +186,12 @@ TEST_CASE("quality accumulator: exact sums on large 1- and 3-channel images, 1 a
       total_sq += sq[std::size_t(ch)];
       centred += chan_sum2[std::size_t(ch)] - chan_sum[std::size_t(ch)] * chan_sum[std::size_t(ch)] / pixels;
     }
-    const int saved = omp_get_max_threads();
-    omp_set_num_threads(1);
-    const ImageQuality one = compare_images(x, y);
-    omp_set_num_threads(2);
-    const ImageQuality two = compare_images(x, y);
-    omp_set_num_threads(saved);
+    const auto on_threads = [&](int threads) {
+      const ThreadGuard guard({.openmp = threads});
+      return compare_images(x, y);
+    };
+    const ImageQuality one = on_threads(1);
+    const ImageQuality two = on_threads(2);
     check_same(one, two);
     CHECK(one.mse == double(total_sq / (pixels * c)));
     for (int ch = 0; ch < c; ++ch) CHECK(one.channel_mse[std::size_t(ch)] == double(sq[std::size_t(ch)] / pixels));

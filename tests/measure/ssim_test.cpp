@@ -10,6 +10,7 @@
 
 #include "../support/synthetic.hpp"
 #include "core/error.hpp"
+#include "core/thread_guard.hpp"
 #include "measure/ssim.hpp"
 
 using namespace pcasweep;
@@ -287,12 +288,12 @@ TEST_CASE("SSIM accumulator: same bits on 1 and 2 threads and inside a parallel 
   Image x, y;
   scene_pair(700, 60, 3, 8, 5, x, y);  // wide enough for several column tiles and a parallel band
   for (const SsimPrecision p : kBoth) {
-    const int saved = omp_get_max_threads();
-    omp_set_num_threads(1);
-    const SsimResult one = compute_ssim(x, y, false, p);
-    omp_set_num_threads(2);
-    const SsimResult two = compute_ssim(x, y, false, p);
-    omp_set_num_threads(saved);
+    const auto on_threads = [&](int threads) {
+      const ThreadGuard guard({.openmp = threads});
+      return compute_ssim(x, y, false, p);
+    };
+    const SsimResult one = on_threads(1);
+    const SsimResult two = on_threads(2);
     CHECK(one.ssim == two.ssim);
     std::vector<double> inside(2, 0.0);
 #pragma omp parallel for num_threads(2) schedule(static)

@@ -8,6 +8,7 @@
 #include <cmath>
 
 #include "core/error.hpp"
+#include "core/thread_guard.hpp"
 #include "solve/operator.hpp"
 #include "solve/randomized.hpp"
 #include "solve/solver.hpp"
@@ -126,12 +127,12 @@ TEST_CASE("randomized: orthonormal, sorted, deterministic sign, bit-identical fo
 }
 
 TEST_CASE("randomized: the Gaussian test matrix does not depend on the thread count") {
-  const int saved = omp_get_max_threads();
-  omp_set_num_threads(1);
-  const Eigen::MatrixXd one = gaussian_matrix(1001, 7, 99);
-  omp_set_num_threads(std::max(2, saved));
-  const Eigen::MatrixXd many = gaussian_matrix(1001, 7, 99);
-  omp_set_num_threads(saved);
+  const auto on_threads = [](int threads) {
+    const ThreadGuard guard({.openmp = threads});
+    return gaussian_matrix(1001, 7, 99);
+  };
+  const Eigen::MatrixXd one = on_threads(1);
+  const Eigen::MatrixXd many = on_threads(std::max(2, omp_get_max_threads()));
   CHECK(one == many);
   // Loose sanity of the distribution (common practice): mean near 0, variance near 1.
   CHECK(std::abs(one.mean()) < 0.05);
