@@ -420,9 +420,8 @@ class Engine final : public EngineBase {
 };
 
 // Column tile widths in samples; a tile's ring (11 rows × 4 moments) is
-// 22 KiB in float, 45 KiB in double. Measured on 6000×1000 RGB, one thread
-// (docs/performance.md, "SSIM cost"): double 64 / 128 / 256 → 0.27–0.34 /
-// 0.23–0.27 / 0.29 s; single 64 / 128 / 256 → 0.18 / 0.14 / 0.15 s.
+// 22 KiB in float, 45 KiB in double; 128 was the fastest width measured
+// for both (docs/performance.md, "SSIM cost" and "Figures once quoted in headers").
 constexpr int kTileFloat = 128;
 constexpr int kTileDouble = 128;
 

@@ -297,9 +297,9 @@ void sweep_worker(BatchResult& result, const BatchSettings& settings, std::atomi
 
 // The sweep: `workers` files at a time, each file's linear algebra on one
 // thread. Measured (docs/batch.md): with OpenMP inside each file instead,
-// a 24-file batch took 6x longer on the 2-core reference machine, the
-// threads spinning at every small parallel region; so the files are the
-// unit of parallelism even with --threads 1.
+// a batch took several times longer, the threads spinning at every small
+// parallel region (figures in docs/batch.md); so the files are the unit of
+// parallelism even with --threads 1.
 void sweep_files(BatchResult& result, const BatchSettings& settings, const BatchProgressFn& progress) {
   const std::size_t n = result.files.size();
   const int workers = int(std::min<std::size_t>(std::size_t(settings.threads), std::max<std::size_t>(n, 1)));

@@ -2,8 +2,8 @@
 //
 // Debian's OpenBLAS 0.3.21 (DYNAMIC_ARCH) picks its kernels from cpuid when the
 // library is loaded, before main(). On a CPU it does not recognise it falls back
-// to its oldest SSE3 kernels ("Prescott"), which ran the solver's products about
-// 2× slower than the AVX2 ones (docs/performance.md, "BLAS kernels"). The only
+// to its oldest SSE3 kernels ("Prescott"), which ran the solver's products much
+// slower than the AVX2 ones (docs/performance.md, "The kernels OpenBLAS picks"). The only
 // way to change the choice is OPENBLAS_CORETYPE in the environment *before* the
 // library initialises, so blas_startup() sets it and restarts the program once.
 //

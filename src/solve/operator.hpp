@@ -61,8 +61,8 @@ class DenseOperator : public CenteredOperator {
 };
 
 // The operator over float32 observations whose products run in single
-// precision (sgemm: about 1.8× dgemm's rate on the reference machine,
-// docs/performance.md). The mean is removed implicitly, as in DenseOperator;
+// precision (sgemm runs at a higher rate than dgemm: docs/performance.md,
+// "Precision"). The mean is removed implicitly, as in DenseOperator;
 // the mean, the sums of squares, the scatter and the centring terms are
 // accumulated in double. Products carry rounding of about √(inner length)·2⁻²⁴
 // against ‖row‖·‖column‖ of the uncentred data, so data whose mean dwarfs its
@@ -89,10 +89,9 @@ class SingleOperator : public CenteredOperator {
   Eigen::VectorXd column_sums_of_squares() const override { return sums_; }
   double unit_roundoff() const override;
   // One sweep: each block of rows (columns for the transpose) makes both of
-  // its products while it is in cache. 20000×1024 by 1024×74 on the
-  // reference machine: 0.019 s against 0.026 s for two sgemm calls; in double
-  // the same sweep gains nothing (docs/performance.md), so DenseOperator does
-  // not fuse.
+  // its products while it is in cache, which was measured faster than two
+  // sgemm calls; in double the same sweep gained nothing, so DenseOperator
+  // does not fuse (docs/performance.md, "Figures once quoted in headers").
   Eigen::MatrixXd apply_normal(const Eigen::MatrixXd& w, Eigen::MatrixXd& y) const override;
   Eigen::MatrixXd apply_normal_transpose(const Eigen::MatrixXd& w, Eigen::MatrixXd& y) const override;
   bool fuses_normal_products() const override { return true; }

@@ -15,6 +15,7 @@
 //    eigenvalue estimates settle (their next relative move, extrapolated from
 //    the last two, is below `tolerance`), when the space holds all of A_c, or
 //    at `max_passes`. docs/performance.md gives the measurements behind it.
+// (The schemes themselves, as named steps: solve/randomized_detail.hpp.)
 // A sample as wide as min(N, d) is exact in two passes and stops there.
 // Products go through the operator in its own precision (double, or float32
 // for SingleOperator, whose paired products block Krylov then asks for in one
@@ -63,7 +64,7 @@ Eigen::MatrixXd gaussian_matrix(Eigen::Index rows, Eigen::Index cols, std::uint6
 
 // M: m×l, m >= l. Replaces M by Q (m×l, orthonormal columns) and returns R
 // (l×l upper triangular) with M = Q·R. By CholeskyQR2 (two rounds of Gram →
-// Cholesky → triangular solve: BLAS-3 work, 2–3× faster than Householder here,
+// Cholesky → triangular solve: BLAS-3 work, measured faster than Householder,
 // docs/performance.md); when the block is too ill-conditioned for it (a rank-
 // deficient sample, say) by Householder QR instead, and then sets *fell_back.
 Eigen::MatrixXd orthonormalize(Eigen::MatrixXd& M, bool* fell_back = nullptr);

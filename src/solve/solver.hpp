@@ -34,12 +34,12 @@ struct SolverSettings {
 // Rank a truncated solver computes when SolverSettings::rank is 0.
 inline constexpr Eigen::Index kDefaultRank = 32;
 
-// How `auto` chooses (measured on the reference machine with OpenBLAS,
-// `pcasweep-bench crossover`; docs/performance.md, "Choosing a solver").
+// How `auto` chooses: a flop count of each path priced at rates fitted to
+// earlier measurements with OpenBLAS (`pcasweep-bench crossover`; the figures
+// and the machine are in docs/performance.md, "Choosing a solver").
 // Exact: scatter N·d² at kScatterFlopRate plus the symmetric eigensolver's d³
-// at kEigenFlopRate (fitted: d = 1024 took 0.165 s, d = 2048 1.45 s).
-// Randomized: kTypicalPasses products of 2·N·d·l flops at kProductFlopRate
-// (75–97 GFLOP/s seen, overheads included). Randomized wins when its
+// at kEigenFlopRate. Randomized: kTypicalPasses products of 2·N·d·l flops at
+// kProductFlopRate (overheads included). Randomized wins when its
 // prediction is below kCrossoverMargin times the exact one.
 inline constexpr double kScatterFlopRate = 140e9;
 inline constexpr double kEigenFlopRate = 6e9;
@@ -48,22 +48,21 @@ inline constexpr double kTypicalPasses = 9.0;
 inline constexpr double kCrossoverMargin = 0.5;
 // d up to this always goes to the exact solver, which then gives every
 // eigenvalue (the rules for k and the near-zero diagnosis read the whole
-// spectrum). Measured cost of that choice at rank 32: exact 0.31 s against
-// randomized 0.16 s at N = 20000, d = 1024; 0.18 against 0.02 s at N = 2000.
+// spectrum); up to here the time that choice costs over the randomized solver
+// stays a fraction of a second (docs/performance.md, "Choosing a solver").
 inline constexpr Eigen::Index kAlwaysExactDimension = 1024;
 // solve(X, …) with single precision asked for keeps double when the data's
 // mean makes them more than this many times their spread (‖A‖_F/‖A_c‖_F):
 // single products lose that factor of accuracy, and beyond 16 their rounding
 // (16·2⁻²⁴ ≈ 1e-6 of the centred data) would reach the default tolerance.
-// The bundled samples' 8×8 patch matrices sit at 1.74–2.82 (docs/performance.md).
+// Where the bundled samples sit: docs/performance.md, "Precision".
 inline constexpr double kSingleOffsetLimit = 16.0;
 // A single-precision solve is kept only when the variance beyond its rank is
 // at least this many times its rounding level (the operator's unit_roundoff)
 // of the total: rounding of order u·‖A_c‖²_F moves the rank-k error² by as
 // much, so for an error within 1e-3 of optimal the optimal error² must exceed
-// about 500·u·‖A_c‖²_F. Measured where it fails: fast decay at k = 256
-// (variance beyond 7.6e-12 of the total) gave error/optimum 29.2 in single
-// (docs/performance.md, "Precision").
+// about 500·u·‖A_c‖²_F. The case that showed it is in docs/performance.md,
+// "Precision".
 inline constexpr double kSingleTailMargin = 1e3;
 // The exact solver refuses when its d×d matrices would need more than this.
 inline constexpr double kExactMemoryLimit = 4.0 * 1073741824.0;
