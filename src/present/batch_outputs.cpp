@@ -5,6 +5,7 @@
 #include "present/batch_report.hpp"
 #include "present/batch_tables.hpp"
 #include "present/output_folder.hpp"
+#include "present/tool_json.hpp"
 #include "report/html.hpp"
 
 namespace pcasweep {
@@ -96,7 +97,8 @@ nlohmann::json batch_summary_json(const BatchStudy& study, const BatchSettings& 
   const BatchResult& r = study.result;
   const BatchFigures& figures = study.figures;
   nlohmann::json j;
-  j["tool"] = {{"name", "pcasweep"}, {"version", PCASWEEP_VERSION}, {"command", "batch"}};
+  j["tool"] = tool_json();
+  j["tool"]["command"] = "batch";
   j["settings"] = s.settings_json;
   j["inputs"] = inputs_json(r);
   j["basis"] = basis_json(r, figures.ks);

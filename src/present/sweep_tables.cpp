@@ -5,6 +5,7 @@
 
 #include "core/format.hpp"
 #include "measure/choose_k.hpp"
+#include "present/tool_json.hpp"
 #include "solve/blas_runtime.hpp"
 
 namespace pcasweep {
@@ -45,7 +46,7 @@ Table sweep_table(const std::vector<SweepRow>& rows, const std::vector<std::stri
 nlohmann::json sweep_summary(const ImageAnalysis& a, const std::vector<SweepRow>& rows,
                              const nlohmann::json& settings) {
   nlohmann::json j;
-  j["tool"] = {{"name", "pcasweep"}, {"version", PCASWEEP_VERSION}};
+  j["tool"] = tool_json();
   const Image& first = a.image();
   j["input"] = {{"files", a.inputs},
                 {"width", first.width},
@@ -100,7 +101,7 @@ Table signal_sweep_table(const std::vector<SignalSweepRow>& rows, const std::vec
 nlohmann::json signal_sweep_summary(const SignalAnalysis& a, const std::vector<SignalSweepRow>& rows,
                                     const nlohmann::json& settings) {
   nlohmann::json j;
-  j["tool"] = {{"name", "pcasweep"}, {"version", PCASWEEP_VERSION}};
+  j["tool"] = tool_json();
   const Signal& s = a.signal;
   j["input"] = {{"files", {a.input}},
                 {"kind", "signal"},
