@@ -515,6 +515,7 @@ struct ReadJob {
   png_structp png = nullptr;
   png_infop info = nullptr;
   char message[256] = {0};
+  char stream_warning[256] = {0};      // the first warning about the image data stream, if any
   Image image;
   std::vector<std::uint8_t> row;       // one decoded row, when alpha is dropped while reading
   std::vector<png_bytep> row_pointers; // interlaced files only
@@ -551,7 +552,19 @@ void png_error_callback(png_structp png, png_const_charp message) {
   png_longjmp(png, 1);
 }
 
-void png_warning_callback(png_structp, png_const_charp) {}  // ancillary-chunk trouble: ignored, as stb did
+// libpng reports some damage to the image data only as a "benign error", which a read struct
+// turns into a warning by default: an Adler-32 that does not match the inflated data, compressed
+// data after the end of the zlib stream, more IDAT data than the rows need (libpng 1.6,
+// png_read_IDAT_data and png_read_finish_IDAT). Those warnings name the IDAT chunk; they are
+// kept and make the read fail once libpng is done. Other warnings (ancillary chunks such as an
+// odd iCCP profile) are ignored, as stb_image did.
+void png_warning_callback(png_structp png, png_const_charp message) {
+  auto* job = static_cast<ReadJob*>(png_get_error_ptr(png));
+  const char* text = message ? message : "";
+  const bool stream = std::strstr(text, "IDAT") != nullptr || std::strstr(text, "compressed data") != nullptr ||
+                      std::strstr(text, "image data") != nullptr || std::strstr(text, "CRC") != nullptr;
+  if (stream && job->stream_warning[0] == 0) std::snprintf(job->stream_warning, sizeof job->stream_warning, "%s", text);
+}
 
 // Widens n 8-bit samples stored at the start of `row` to uint16 in place (from the end, so no
 // byte is overwritten before it is read).
@@ -657,6 +670,9 @@ bool run_libpng(ReadJob* job) {
   png_structp png = job->png;
   png_infop info = job->info;
   png_set_read_fn(png, &job->source, png_read_callback);
+  // A CRC error is an error in every chunk, ancillary ones included (libpng's default only warns
+  // and skips an ancillary chunk whose CRC is wrong): a file damaged anywhere is refused.
+  png_set_crc_action(png, PNG_CRC_ERROR_QUIT, PNG_CRC_ERROR_QUIT);
   // Our own guard decides about size (max_pixels); libpng's default limits (1e6 per side) would
   // refuse some legitimate panoramas. The format's maximum is 2^31 − 1 per side.
   png_set_user_limits(png, 0x7fffffff, 0x7fffffff);
@@ -711,6 +727,10 @@ bool run_libpng(ReadJob* job) {
   // CRCs, IEND.
   png_read_end(png, nullptr);
   image.alpha_dropped = drop;
+  if (job->stream_warning[0] != 0) {
+    std::snprintf(job->message, sizeof job->message, "%s", job->stream_warning);
+    return false;
+  }
   return true;
 }
 
