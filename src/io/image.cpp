@@ -9,9 +9,11 @@
 #include <cstring>
 #include <filesystem>
 #include <fstream>
+#include <string_view>
 
 #include "core/error.hpp"
 #include "io/atomic_file.hpp"
+#include "io/jpeg.hpp"
 #include "io/png.hpp"
 
 namespace pcasweep {
@@ -153,7 +155,8 @@ bool decode_binary_pnm(const std::string& bytes, const std::string& name, std::u
 }
 
 
-// The least number of bytes a file of one of the formats read by stb_image can take for a
+// The least number of bytes a file of one of the formats read by stb_image (BMP, TGA, and the
+// unadvertised GIF, PSD, HDR, PIC) can take for a
 // declared w×h, from the format's maximum compression, with the bound's name for the message.
 // `bytes` is the whole file (stbi_info has already accepted it).
 struct MinimumSize {
@@ -167,16 +170,6 @@ MinimumSize stb_minimum_size(const std::string& file, std::uint64_t w, std::uint
   const double pixels = double(w) * double(h);
   auto le16 = [&](std::size_t at) { return at + 2 <= n ? unsigned(b[at]) | (unsigned(b[at + 1]) << 8) : 0u; };
   auto le32 = [&](std::size_t at) { return at + 4 <= n ? le16(at) | (std::uint32_t(le16(at + 2)) << 16) : 0u; };
-  if (n >= 2 && b[0] == 0xFF && b[1] == 0xD8) {
-    // JPEG (ITU-T T.81), Huffman-coded (stb_image decodes no arithmetic-coded JPEG). The
-    // component with the largest sampling factors has ceil(w/8)·ceil(h/8) blocks, and every block
-    // gets its DC difference coded with a Huffman code of at least one bit, in the sequential scan
-    // or in the DC scan that precedes the AC scans of a progressive file (T.81 G.1.1.1.1); AC
-    // data may cost next to nothing (progressive end-of-band runs cover up to 32767 blocks per
-    // code). Assumed: at least 1 bit per 8×8 block of that component, generous (a baseline block
-    // needs a DC and an end-of-block code, several bits in practice).
-    return {double((w + 7) / 8) * double((h + 7) / 8) / 8.0, "one bit per 8x8 block (JPEG, ITU-T T.81)"};
-  }
   if (n >= 2 && b[0] == 'B' && b[1] == 'M') {
     // BMP: stb_image reads only uncompressed rasters (BI_RGB, BI_BITFIELDS) and refuses RLE
     // (which has no bound anyway: its end-of-line and end-of-bitmap escapes skip any number of
@@ -235,6 +228,24 @@ void check_complete_bmp(const std::string& file, const std::string& name, std::u
                      " bytes in all");
 }
 
+// What follows a TGA's pixel data (from byte `end`): nothing (TGA 1.0), or the TGA 2.0 areas
+// ending with the 26-byte footer whose last 18 bytes are "TRUEVISION-XFILE" '.' NUL; an extension
+// area starts with its own size, 495, as a 16-bit little-endian field (Truevision TGA 2.0). A tail
+// shorter than a footer, one that names the signature without ending with it, or an extension area
+// longer than the tail is a file cut after its pixels. A longer tail with no sign of TGA 2.0 is
+// taken as trailing data of a TGA 1.0 file and ignored.
+void check_tga_tail(const std::string& file, const std::string& name, std::uint64_t end) {
+  static const std::string_view signature("TRUEVISION-XFILE.\0", 18);
+  if (end >= file.size()) return;
+  const std::string_view tail(file.data() + end, file.size() - end);
+  if (tail.size() >= 26 && tail.substr(tail.size() - 18) == signature) return;
+  const bool extension = tail.size() >= 2 && static_cast<unsigned char>(tail[0]) == 0xEF && tail[1] == 0x01;
+  if (tail.size() < 26 || tail.find("TRUEVISION") != std::string_view::npos || (extension && tail.size() < 495 + 26))
+    throw data_error(name + ": truncated TGA: the " + std::to_string(tail.size()) +
+                     " bytes after the pixel data are not a whole TGA 2.0 footer (26 bytes ending in "
+                     "TRUEVISION-XFILE)");
+}
+
 // TGA (Truevision TGA 2.0): the pixel data follow the 18-byte header, the
 // image ID (byte 0 holds its length) and the colour map (present when byte 1
 // is 1: byte 5 holds its entries, byte 7 their bits). Uncompressed types
@@ -264,19 +275,20 @@ void check_complete_tga(const std::string& file, const std::string& name, std::u
                          std::to_string(covered) + " of " + std::to_string(pixels) + " pixels");
       covered += count;
     }
+    check_tga_tail(file, name, pos);
     return;
   }
   if (start + pixels * pixel_bytes > n)
     throw data_error(truncated + "the header promises " + std::to_string(pixels * pixel_bytes) +
                      " bytes of pixels from byte " + std::to_string(start) + ", the file holds " + std::to_string(n) +
                      " bytes in all");
+  check_tga_tail(file, name, start + pixels * pixel_bytes);
 }
 
-// The name of the format stb_image will decode `file` as, for messages: "JPEG", "BMP", "TGA" or "image".
+// The name of the format stb_image will decode `file` as, for messages: "BMP", "TGA" or "image".
 std::string stb_format_name(const std::string& file) {
   const auto* b = reinterpret_cast<const unsigned char*>(file.data());
   const std::size_t n = file.size();
-  if (n >= 2 && b[0] == 0xFF && b[1] == 0xD8) return "JPEG";
   if (n >= 2 && b[0] == 'B' && b[1] == 'M') return "BMP";
   const bool other = (n >= 4 && (std::memcmp(b, "GIF8", 4) == 0 || std::memcmp(b, "8BPS", 4) == 0)) ||
                      (n >= 2 && b[0] == '#' && b[1] == '?') ||
@@ -296,6 +308,10 @@ void check_complete_raster(const std::string& file, const std::string& name, std
 Image decode_image(const std::string& bytes, const std::string& name, const ImageReadOptions& options) {
   if (bytes.empty()) throw data_error(name + ": empty file");
   if (has_png_signature(bytes.data(), bytes.size())) return decode_png(bytes, name, options);
+  // JPEG (SOI marker, ITU-T T.81 B.1.1.3) through libjpeg-turbo, strict: stb_image decodes damaged
+  // entropy-coded data without a word.
+  if (bytes.size() >= 2 && static_cast<unsigned char>(bytes[0]) == 0xFF && static_cast<unsigned char>(bytes[1]) == 0xD8)
+    return decode_jpeg(bytes, name, options);
   {
     Image pnm;
     if (decode_binary_pnm(bytes, name, options.max_pixels, pnm)) return pnm;  // no alpha in P5/P6

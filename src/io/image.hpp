@@ -4,7 +4,8 @@
 // 8-bit, 0..65535 for 16-bit), interleaved, row-major: the sample of channel c
 // at column x, row y is samples[(y * width + x) * channels + c]. Readers take
 // PNG (libpng, streaming, strict: io/png.hpp), binary PNM (our own reader),
-// JPEG, BMP and TGA (stb_image), 8- and 16-bit where the format has it; writers
+// JPEG (libjpeg-turbo, strict: io/jpeg.hpp), BMP and TGA (stb_image, after our
+// completeness checks), 8- and 16-bit where the format has it; writers
 // produce PNG through our encoder (io/png.hpp), 16-bit stays 16-bit. Every
 // reader checks the declared size from the header alone before allocating
 // (guard_declared_size). Every failure throws pcasweep::Error(data) whose

@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "core/error.hpp"
+#include "io/image.hpp"
 
 namespace pcasweep {
 
@@ -124,7 +125,7 @@ struct JpegRowReader::State {
 
 namespace {
 // libjpeg calls of the reader, each with only trivial locals around setjmp.
-bool open_stream(jpeg_decompress_struct* cinfo, ErrorManager* errors, const unsigned char* data, unsigned long size,
+bool read_header(jpeg_decompress_struct* cinfo, ErrorManager* errors, const unsigned char* data, unsigned long size,
                  bool* created) {
   cinfo->err = &errors->base;
   install(&errors->base);
@@ -133,9 +134,24 @@ bool open_stream(jpeg_decompress_struct* cinfo, ErrorManager* errors, const unsi
   *created = true;
   jpeg_mem_src(cinfo, data, size);
   jpeg_read_header(cinfo, TRUE);
+  return true;
+}
+
+bool start(jpeg_decompress_struct* cinfo, ErrorManager* errors) {
+  if (setjmp(errors->jump)) return false;
   cinfo->out_color_space = cinfo->num_components == 1 ? JCS_GRAYSCALE : JCS_RGB;
   jpeg_start_decompress(cinfo);
   return true;
+}
+
+JpegHeader header_of(const jpeg_decompress_struct& cinfo) {
+  JpegHeader h;
+  h.width = int(cinfo.image_width);
+  h.height = int(cinfo.image_height);
+  h.components = cinfo.num_components;
+  h.arithmetic = cinfo.arith_code != 0;
+  h.progressive = cinfo.progressive_mode != 0;
+  return h;
 }
 
 // Reads one row into `row`; after the last row, checks the end of the stream.
@@ -148,13 +164,20 @@ bool read_one(jpeg_decompress_struct* cinfo, ErrorManager* errors, JSAMPLE* row)
 }
 }  // namespace
 
-JpegRowReader::JpegRowReader(std::string_view bytes, const std::string& name) : state_(std::make_unique<State>()) {
+JpegRowReader::JpegRowReader(std::string_view bytes, const std::string& name, const JpegHeaderCheck& check)
+    : state_(std::make_unique<State>()) {
   State& s = *state_;
   s.name = name;
-  if (!open_stream(&s.cinfo, &s.errors, reinterpret_cast<const unsigned char*>(bytes.data()),
+  if (!read_header(&s.cinfo, &s.errors, reinterpret_cast<const unsigned char*>(bytes.data()),
                    static_cast<unsigned long>(bytes.size()), &s.created)) {
-    throw data_error(name + ": not a readable JPEG (" + s.errors.message + ")");
+    throw data_error(name + ": corrupt or truncated JPEG (" + s.errors.message + ")");
   }
+  if (s.cinfo.num_components != 1 && s.cinfo.num_components != 3) {
+    throw data_error(name + ": not a readable JPEG (" + std::to_string(s.cinfo.num_components) +
+                     " colour components: only gray and YCbCr/RGB JPEG are read)");
+  }
+  if (check) check(header_of(s.cinfo));
+  if (!start(&s.cinfo, &s.errors)) throw data_error(name + ": corrupt or truncated JPEG (" + s.errors.message + ")");
   s.row.resize(std::size_t(s.cinfo.output_width) * s.cinfo.output_components);
 }
 
@@ -172,11 +195,35 @@ int JpegRowReader::read_rows(std::uint16_t* out, int rows) {
   const std::size_t n = s.row.size();
   while (done < rows && s.cinfo.output_scanline < s.cinfo.output_height) {
     if (!read_one(&s.cinfo, &s.errors, s.row.data()))
-      throw data_error(s.name + ": JPEG data is damaged (" + s.errors.message + ")");
+      throw data_error(s.name + ": corrupt or truncated JPEG (" + s.errors.message + ")");
     for (std::size_t i = 0; i < n; ++i) out[std::size_t(done) * n + i] = s.row[i];
     ++done;
   }
   return done;
+}
+
+Image decode_jpeg(const std::string& bytes, const std::string& name, const ImageReadOptions& options) {
+  auto guard = [&](const JpegHeader& h) {
+    // Huffman-coded JPEG (ITU-T T.81): the component with the largest sampling factors has
+    // ceil(w/8)·ceil(h/8) blocks, and each block's DC difference takes a Huffman code of at least
+    // one bit, in the sequential scan or in the first DC scan of a progressive file (T.81
+    // G.1.1.1.1); AC data may cost next to nothing (end-of-band runs). So at least 1 bit per 8×8
+    // block, generous. Arithmetic coding (T.81 Annex D) adapts its probabilities and can code a
+    // block in far less than a bit: only --max-pixels bounds it.
+    const double blocks = double((std::uint64_t(h.width) + 7) / 8) * double((std::uint64_t(h.height) + 7) / 8);
+    const double least = h.arithmetic ? 0.0 : blocks / 8.0;
+    guard_declared_size(name, std::uint64_t(h.width), std::uint64_t(h.height), options.max_pixels, least,
+                        bytes.size(), "one bit per 8x8 block (Huffman-coded JPEG, ITU-T T.81)");
+    if (std::uint64_t(h.width) * std::uint64_t(h.height) * std::uint64_t(h.components) > kMaxImageSamples)
+      throw data_error(name + ": image too large (" + std::to_string(h.width) + "x" + std::to_string(h.height) + ")");
+  };
+  JpegRowReader reader(bytes, name, guard);
+  Image image = make_image(reader.width(), reader.height(), reader.channels(), 8);
+  const int rows = reader.read_rows(image.samples.data(), image.height);
+  if (rows != image.height)
+    throw data_error(name + ": corrupt or truncated JPEG: " + std::to_string(rows) + " of " +
+                     std::to_string(image.height) + " rows decoded");
+  return image;
 }
 
 }  // namespace pcasweep
