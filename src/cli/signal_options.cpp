@@ -38,6 +38,11 @@ void add_signal_options(CLI::App& sub, SignalOptionText& text) {
   sub.add_option("--raw", text.raw, "Read the input as headerless little-endian samples: int16 or float32")
       ->check(CLI::IsMember({"int16", "float32"}));
   sub.add_option("--raw-channels", text.raw_channels, "Raw: interleaved channels per frame (default 1)");
+  sub.add_option("--max-frames", text.max_frames,
+                 "Recordings: longest read, in frames (samples per channel; default 268435456 = 2^28, about 93 "
+                 "minutes at 48 kHz). Checked from the header before anything is allocated, with whether an "
+                 "uncompressed file is large enough for the frames it declares")
+      ->check(CLI::PositiveNumber);
 }
 
 bool signal_input_requested(const CLI::App& sub, const SignalOptionText& text, const std::string& input) {
@@ -90,6 +95,7 @@ SignalStudySettings signal_settings(const SignalOptionText& text, const CLI::App
   s.read.raw_type = text.raw;
   if (text.raw_channels < 1) throw usage_error("--raw-channels must be at least 1");
   s.read.raw_channels = text.raw_channels;
+  s.read.max_frames = text.max_frames;
   return s;
 }
 

@@ -26,12 +26,13 @@ struct SignalOptionText {
   double rate = 0.0;
   std::string raw;                 // "", "int16", "float32"
   int raw_channels = 1;
+  std::uint64_t max_frames = kDefaultMaxFrames;  // --max-frames (io/sound_checks.hpp)
   std::string layout;              // only used when this file declared --layout
   bool declared_layout = false;
 };
 
 // Declares --window, --hop, --taper, --channels, --columns, --rate, --raw,
-// --raw-channels and (if absent) --layout on `sub`.
+// --raw-channels, --max-frames and (if absent) --layout on `sub`.
 void add_signal_options(CLI::App& sub, SignalOptionText& text);
 
 // True when `input` should be read as a recording.

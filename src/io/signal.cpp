@@ -61,53 +61,6 @@ sf_count_t mem_read(void* ptr, sf_count_t count, void* user) {
 sf_count_t mem_write(const void*, sf_count_t, void*) { return 0; }
 sf_count_t mem_tell(void* user) { return static_cast<MemoryFile*>(user)->position; }
 
-std::uint32_t read_u32(const std::string& b, std::size_t at, bool big_endian) {
-  std::uint32_t v = 0;
-  for (int i = 0; i < 4; ++i) {
-    const std::uint32_t byte = static_cast<unsigned char>(b[at + std::size_t(i)]);
-    v |= big_endian ? byte << (8 * (3 - i)) : byte << (8 * i);
-  }
-  return v;
-}
-
-// Walks the chunks of a RIFF/WAVE or FORM/AIFF file and refuses one whose
-// sample chunk claims more bytes than follow it (a truncated file or a lying
-// header). libsndfile would quietly shorten such a file; we say so instead.
-void check_container_sizes(const std::string& bytes, const std::string& path) {
-  if (bytes.size() < 12) return;  // too short for a container: libsndfile reports it
-  const std::string magic = bytes.substr(0, 4), kind = bytes.substr(8, 4);
-  bool big_endian;
-  const char* sample_chunk;
-  if (magic == "RIFF" && kind == "WAVE") {
-    big_endian = false;
-    sample_chunk = "data";
-  } else if (magic == "FORM" && (kind == "AIFF" || kind == "AIFC")) {
-    big_endian = true;
-    sample_chunk = "SSND";
-  } else {
-    return;  // RF64, W64, FLAC, Ogg, …: libsndfile's own checks apply
-  }
-  std::size_t at = 12;
-  while (at + 8 <= bytes.size()) {
-    const std::string id = bytes.substr(at, 4);
-    const std::uint64_t size = read_u32(bytes, at + 4, big_endian);
-    const std::uint64_t available = bytes.size() - (at + 8);
-    if (id == sample_chunk) {
-      if (size > available) {
-        throw data_error(path + ": header declares " + std::to_string(size) + " bytes of samples but only " +
-                         std::to_string(available) + " follow (truncated file or lying header)");
-      }
-      return;
-    }
-    if (size > available) {
-      throw data_error(path + ": chunk '" + id + "' declares " + std::to_string(size) + " bytes but only " +
-                       std::to_string(available) + " follow (truncated file or lying header)");
-    }
-    at += 8 + std::size_t(size) + (size & 1);  // chunks are padded to even length
-  }
-  throw data_error(path + ": no '" + std::string(sample_chunk) + "' chunk: the file holds no samples");
-}
-
 struct SubtypeInfo {
   SampleType type;
   int shift;  // sf_read_int returns samples left-aligned in 32 bits: shift right by this
@@ -135,9 +88,13 @@ void check_finite(const Signal& s, const std::string& path) {
       }
 }
 
-void check_size(std::size_t frames, std::size_t channels, const std::string& path) {
+void check_size(std::size_t frames, std::size_t channels, const std::string& path, std::uint64_t max_frames) {
   if (frames == 0) throw data_error(path + ": the recording holds no samples");
   if (channels == 0) throw data_error(path + ": the recording has no channels");
+  if (frames > max_frames) {
+    throw data_error(path + ": " + std::to_string(frames) + " frames, above --max-frames (" +
+                     std::to_string(max_frames) + "); raise --max-frames to read it");
+  }
   if (frames > kMaxSignalSamples / channels) {
     throw data_error(path + ": recording too large (" + std::to_string(frames) + " frames x " +
                      std::to_string(channels) + " channels; at most " + std::to_string(kMaxSignalSamples) +
@@ -168,8 +125,8 @@ std::vector<std::string> parse_channel_names_comment(const std::string& comment,
   return int(names.size()) == channels ? names : std::vector<std::string>{};
 }
 
-Signal read_sndfile(const std::string& bytes, const std::string& path) {
-  check_container_sizes(bytes, path);
+Signal read_sndfile(const std::string& bytes, const std::string& path, std::uint64_t max_frames) {
+  check_sound_container(bytes, path);
   MemoryFile memory{&bytes};
   SF_VIRTUAL_IO io{mem_length, mem_seek, mem_read, mem_write, mem_tell};
   SF_INFO info{};
@@ -182,7 +139,9 @@ Signal read_sndfile(const std::string& bytes, const std::string& path) {
     ~Closer() { sf_close(f); }
   } closer{file};
   if (info.channels <= 0 || info.frames < 0) throw data_error(path + ": header declares an impossible shape");
-  check_size(std::size_t(info.frames), std::size_t(info.channels), path);
+  check_declared_frames(path, std::uint64_t(info.frames), std::uint64_t(info.channels), info.format, bytes.size(),
+                        max_frames);
+  check_size(std::size_t(info.frames), std::size_t(info.channels), path, max_frames);
   if (info.samplerate <= 0) throw data_error(path + ": header declares a sample rate of " +
                                              std::to_string(info.samplerate) + " Hz");
   Signal s;
@@ -197,7 +156,11 @@ Signal read_sndfile(const std::string& bytes, const std::string& path) {
     if (!names.empty()) s.channel_names = std::move(names);
   }
   const Eigen::Index frames = info.frames, channels = info.channels;
-  s.samples.resize(frames, channels);
+  // Uncompressed samples were checked against the file's size: all are allocated at once. A
+  // compressed file's frame count is only its header's word, so its matrix grows (doubling) as
+  // frames actually arrive.
+  const bool compressed = uncompressed_sample_bytes(info.format) == 0;
+  s.samples.resize(compressed ? std::min<Eigen::Index>(frames, Eigen::Index(1) << 16) : frames, channels);
   // Read in blocks of frames; the interleaved block is scattered into columns.
   constexpr sf_count_t kBlock = 8192;
   std::vector<int> ints;
@@ -214,6 +177,8 @@ Signal read_sndfile(const std::string& bytes, const std::string& path) {
   sf_count_t done = 0;
   while (done < frames) {
     const sf_count_t want = std::min<sf_count_t>(kBlock, frames - done);
+    if (done + want > s.samples.rows())
+      s.samples.conservativeResize(std::min<Eigen::Index>(frames, 2 * s.samples.rows()), channels);
     const sf_count_t got =
         integer ? sf_readf_int(file, ints.data(), want) : sf_readf_double(file, reals.data(), want);
     if (got <= 0) break;
@@ -349,7 +314,7 @@ Signal read_csv(const std::string& bytes, const std::string& path, const SignalR
   const std::size_t first_data = header ? 1 : 0;
   const std::size_t frames = lines.size() - first_data;
   if (frames == 0) throw data_error(path + ": a header row but no data rows");
-  check_size(frames, keep.size(), path);
+  check_size(frames, keep.size(), path, options.max_frames);
   Signal s;
   s.format = SignalFormat::csv;
   s.csv_header = header;
@@ -398,7 +363,7 @@ Signal read_raw(const std::string& bytes, const std::string& path, const SignalR
                      std::to_string(frame_bytes) + " bytes each)");
   }
   const std::size_t frames = bytes.size() / frame_bytes;
-  check_size(frames, std::size_t(options.raw_channels), path);
+  check_size(frames, std::size_t(options.raw_channels), path, options.max_frames);
   Signal s;
   s.format = SignalFormat::raw;
   s.sample_type = width == 2 ? SampleType::pcm16 : SampleType::float32;
@@ -545,7 +510,7 @@ Signal read_signal(const std::string& path, const SignalReadOptions& options) {
   Signal s;
   if (!options.raw_type.empty() || is_raw_extension(ext)) s = read_raw(bytes, path, options);
   else if (is_csv_extension(ext)) s = read_csv(bytes, path, options);
-  else s = read_sndfile(bytes, path);
+  else s = read_sndfile(bytes, path, options.max_frames);
   if (s.format != SignalFormat::sndfile) {
     if (options.rate < 0 || !std::isfinite(options.rate)) throw usage_error("--rate must be a positive number of Hz");
     s.sample_rate_given = options.rate > 0;

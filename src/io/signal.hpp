@@ -20,6 +20,8 @@
 #include <string>
 #include <vector>
 
+#include "io/sound_checks.hpp"
+
 namespace pcasweep {
 
 enum class SignalFormat { sndfile, csv, raw };
@@ -55,6 +57,7 @@ struct SignalReadOptions {
   double rate = 0.0;                 // CSV/raw: sample rate in Hz (0: not given, 1 Hz assumed)
   std::string raw_type;              // "int16" or "float32": read as raw (also implied by .raw/.pcm)
   int raw_channels = 1;              // raw: interleaved channel count
+  std::uint64_t max_frames = kDefaultMaxFrames;  // refuse longer recordings before allocating (--max-frames)
 };
 
 // Largest recording accepted, in samples (frames·channels): 2^28, 2 GiB as doubles.
@@ -67,9 +70,13 @@ bool has_signal_extension(const std::string& path);
 // Reads a recording. The format is chosen by `options.raw_type` (raw), then by
 // the extension (.csv: CSV, .raw/.pcm: raw, otherwise libsndfile).
 // Returns frames×channels samples with at least one frame.
-// Throws Error(data) for a missing, empty, truncated or malformed file (a WAV
-// whose header promises more sample bytes than the file holds is refused) and
-// Error(usage) for options that do not fit (unknown column, raw without type).
+// Throws Error(data) for a missing, empty, truncated or malformed file: a WAV or
+// AIFF whose header promises more sample bytes than the file holds, an Ogg file
+// whose pages stop short, any sound file from which fewer frames can be read
+// than its header declares, more frames than options.max_frames (checked before
+// the samples are allocated), a CSV row with a missing or non-numeric cell, raw
+// bytes that are not whole frames; and Error(usage) for options that do not fit
+// (unknown column, raw without type).
 Signal read_signal(const std::string& path, const SignalReadOptions& options = {});
 
 // Rounds and clips `samples` (frames×channels, any reals) to what `like`'s
