@@ -4,12 +4,15 @@
 
 #include "cli/command.hpp"
 #include "core/error.hpp"
+#include "core/interrupt.hpp"
 #include "solve/blas_runtime.hpp"
 
 int main(int argc, char** argv) {
   using namespace pcasweep;
   // First: may restart pcasweep once with OPENBLAS_CORETYPE set (solve/blas_runtime.hpp).
   blas_startup(argv);
+  // SIGINT/SIGTERM remove unfinished files and exit 130/143; SIGXFSZ becomes a write error.
+  install_interrupt_handlers();
   CLI::App app{"pcasweep: how many principal components do your images and signals need, "
                "and what does each choice cost and save?"};
   app.set_version_flag("--version", std::string("pcasweep ") + PCASWEEP_VERSION);

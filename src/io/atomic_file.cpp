@@ -4,54 +4,109 @@
 #include <cerrno>
 #include <cstdio>
 #include <cstring>
+#include <fcntl.h>
 #include <filesystem>
 #include <fstream>
+#include <memory>
 #include <sstream>
 #include <unistd.h>
 
 #include "core/error.hpp"
+#include "core/interrupt.hpp"
 
 namespace pcasweep {
 namespace {
+
+constexpr std::size_t kBufferBytes = std::size_t(1) << 16;
 
 std::string temporary_name(const std::string& path) {
   static std::atomic<unsigned> counter{0};
   return path + ".tmp-" + std::to_string(::getpid()) + "-" + std::to_string(counter++);
 }
 
+// Writes all n bytes to fd; returns 0 or the errno of the failure.
+int write_all(int fd, const char* p, std::size_t n) {
+  while (n > 0) {
+    const ssize_t wrote = ::write(fd, p, n);
+    if (wrote < 0 && errno == EINTR) continue;
+    if (wrote <= 0) return wrote < 0 ? errno : EIO;
+    p += wrote;
+    n -= std::size_t(wrote);
+  }
+  return 0;
+}
+
 }  // namespace
 
-void write_via_temporary(const std::string& path,
-                         const std::function<bool(const std::string&)>& produce) {
-  const std::string tmp = temporary_name(path);
-  bool ok = false;
-  try {
-    ok = produce(tmp);
-  } catch (...) {
-    std::remove(tmp.c_str());
-    throw;
+AtomicFile::AtomicFile(std::string path) : path_(std::move(path)), temporary_(temporary_name(path_)) {
+  fd_ = create_registered_temporary(temporary_, &slot_);
+  if (fd_ < 0) {
+    const int err = errno;
+    temporary_.clear();
+    throw data_error(path_ + ": cannot create a temporary file beside it: " + std::strerror(err));
   }
-  if (!ok) {
-    std::remove(tmp.c_str());
-    throw data_error(path + ": cannot write");
-  }
-  std::error_code ec;
-  std::filesystem::rename(tmp, path, ec);
-  if (ec) {
-    std::remove(tmp.c_str());
-    throw data_error(path + ": cannot write: " + ec.message());
+  buffer_.reserve(kBufferBytes);
+}
+
+AtomicFile::~AtomicFile() {
+  if (fd_ >= 0) ::close(fd_);
+  if (!committed_ && !temporary_.empty()) {
+    ::unlink(temporary_.c_str());
+    forget_temporary(slot_);
   }
 }
 
+void AtomicFile::fail(int err) {
+  throw data_error(path_ + ": cannot write: " + std::strerror(err ? err : EIO));
+}
+
+void AtomicFile::write(const void* data, std::size_t n) {
+  if (fd_ < 0) fail(EBADF);
+  const char* p = static_cast<const char*>(data);
+  if (buffer_.size() + n > kBufferBytes) flush();
+  if (n >= kBufferBytes) {
+    if (const int err = write_all(fd_, p, n)) fail(err);
+    return;
+  }
+  buffer_.insert(buffer_.end(), p, p + n);
+}
+
+void AtomicFile::flush() {
+  if (buffer_.empty()) return;
+  const int err = write_all(fd_, buffer_.data(), buffer_.size());
+  buffer_.clear();
+  if (err) fail(err);
+}
+
+void AtomicFile::commit() {
+  if (committed_ || fd_ < 0) fail(EBADF);
+  flush();
+  const int fd = fd_;
+  fd_ = -1;
+  if (::close(fd) != 0) fail(errno);
+  if (::rename(temporary_.c_str(), path_.c_str()) != 0) fail(errno);
+  committed_ = true;
+  forget_temporary(slot_);
+}
+
 void write_file_atomic(const std::string& path, std::string_view bytes) {
-  write_via_temporary(path, [&](const std::string& tmp) {
-    std::FILE* f = std::fopen(tmp.c_str(), "wb");
-    if (!f) throw data_error(path + ": cannot write: " + std::strerror(errno));
-    const bool wrote = std::fwrite(bytes.data(), 1, bytes.size(), f) == bytes.size();
-    const bool flushed = std::fflush(f) == 0;
-    const bool closed = std::fclose(f) == 0;
-    return wrote && flushed && closed;
-  });
+  AtomicFile file(path);
+  file.write(bytes);
+  file.commit();
+}
+
+void copy_file_atomic(const std::string& from, const std::string& to) {
+  std::unique_ptr<std::FILE, int (*)(std::FILE*)> in(std::fopen(from.c_str(), "rb"), std::fclose);
+  if (!in) throw data_error(from + ": cannot read: " + std::strerror(errno));
+  AtomicFile out(to);
+  std::vector<char> chunk(kBufferBytes);
+  for (;;) {
+    const std::size_t got = std::fread(chunk.data(), 1, chunk.size(), in.get());
+    if (got > 0) out.write(chunk.data(), got);
+    if (got < chunk.size()) break;
+  }
+  if (std::ferror(in.get())) throw data_error(from + ": cannot read: " + std::strerror(errno ? errno : EIO));
+  out.commit();
 }
 
 std::string read_file(const std::string& path) {

@@ -6,7 +6,6 @@
 #include <zlib.h>
 
 #include <algorithm>
-#include <atomic>
 #include <bit>
 #include <cerrno>
 #include <csetjmp>
@@ -392,75 +391,40 @@ class PngRowWriter::Encoder {
 // ---------------------------------------------------------------------------------------------
 // PngRowWriter: the encoder over a temporary file.
 
-namespace {
-
-std::string png_temporary_name(const std::string& path) {
-  // Same folder as `path`, so the rename stays on one file system; a pattern of its own so it
-  // never meets io/atomic_file.cpp's "<path>.tmp-<pid>-<n>".
-  static std::atomic<unsigned> counter{0};
-  return path + ".tmp-" + std::to_string(::getpid()) + "-png" + std::to_string(counter++);
-}
-
-}  // namespace
-
 PngRowWriter::PngRowWriter(const std::string& path, int width, int height, int channels, int bit_depth,
                            const PngWriteOptions& options)
     : path_(path) {
   check_options(options);
-  temporary_ = png_temporary_name(path);
-  file_ = std::fopen(temporary_.c_str(), "wbx");
-  if (!file_) {
-    const int err = errno;
-    temporary_.clear();
-    throw data_error(path + ": cannot create a temporary file beside it: " + std::strerror(err));
-  }
-  try {
-    encoder_ = std::make_unique<Encoder>(path, width, height, channels, bit_depth, options,
-                                         [this](const unsigned char* p, std::size_t n) {
-                                           if (write_failed_) return;
-                                           if (std::fwrite(p, 1, n, file_) != n) {
-                                             write_failed_ = true;
-                                             write_errno_ = errno;
-                                           }
-                                         });
-  } catch (...) {
-    std::fclose(file_);
-    std::remove(temporary_.c_str());
-    throw;
-  }
+  file_ = std::make_unique<AtomicFile>(path);  // throws "<path>: cannot create a temporary file beside it"
+  encoder_ = std::make_unique<Encoder>(path, width, height, channels, bit_depth, options,
+                                       [this](const unsigned char* p, std::size_t n) {
+                                         if (write_error_) return;
+                                         try {
+                                           file_->write(p, n);
+                                         } catch (...) {
+                                           write_error_ = std::current_exception();
+                                         }
+                                       });
 }
 
-PngRowWriter::~PngRowWriter() {
-  encoder_.reset();
-  if (file_) std::fclose(file_);
-  if (!temporary_.empty()) std::remove(temporary_.c_str());
-}
+// The AtomicFile removes the temporary unless finish() committed it.
+PngRowWriter::~PngRowWriter() = default;
 
 int PngRowWriter::rows_written() const { return encoder_->rows_written(); }
 
 void PngRowWriter::write_rows(const std::uint16_t* samples, int rows) {
   if (finished_) throw data_error(path_ + ": rows written to a PNG writer after finish()");
   encoder_->write_rows(samples, rows);
-  if (write_failed_) throw data_error(path_ + ": cannot write: " + std::strerror(write_errno_ ? write_errno_ : EIO));
+  if (write_error_) std::rethrow_exception(write_error_);
 }
 
 void PngRowWriter::finish() {
   if (finished_) throw data_error(path_ + ": PNG writer finished twice");
   if (!file_) throw data_error(path_ + ": PNG writer failed earlier; nothing was written");
   encoder_->finish();
-  std::FILE* file = file_;
-  file_ = nullptr;
-  const bool flushed = std::fflush(file) == 0;
-  const int flush_errno = errno;
-  const bool closed = std::fclose(file) == 0;
-  if (write_failed_ || !flushed || !closed) {
-    const int err = write_failed_ ? write_errno_ : flush_errno;
-    throw data_error(path_ + ": cannot write: " + std::strerror(err ? err : EIO));
-  }
-  std::error_code ec;
-  std::filesystem::rename(temporary_, path_, ec);
-  if (ec) throw data_error(path_ + ": cannot write: " + ec.message());
-  temporary_.clear();
+  std::unique_ptr<AtomicFile> file = std::move(file_);  // removed on any failure below
+  if (write_error_) std::rethrow_exception(write_error_);
+  file->commit();
   finished_ = true;
 }
 

@@ -27,9 +27,11 @@
 #include <cstddef>
 #include <cstdint>
 #include <cstdio>
+#include <exception>
 #include <memory>
 #include <string>
 
+#include "io/atomic_file.hpp"
 #include "io/image.hpp"
 
 namespace pcasweep {
@@ -94,10 +96,9 @@ class PngRowWriter {
   class Encoder;  // the shared encoder (png.cpp)
 
  private:
-  std::string path_, temporary_;
-  std::FILE* file_ = nullptr;  // the temporary, open until finish()
-  bool write_failed_ = false;
-  int write_errno_ = 0;
+  std::string path_;
+  std::unique_ptr<AtomicFile> file_;  // the temporary, open until finish()
+  std::exception_ptr write_error_;     // the first failed write (the encoder's sink must not throw)
   bool finished_ = false;
   std::unique_ptr<Encoder> encoder_;
 };

@@ -442,13 +442,14 @@ std::string encode_raw(const Eigen::MatrixXd& x, const Signal& like) {
   return out;
 }
 
-bool write_sndfile(const std::string& tmp, const Eigen::MatrixXd& x, const Signal& like) {
+// Writes x (T×C) in the format of `like` through the descriptor fd. Returns "" or the reason it failed.
+std::string write_sndfile(int fd, const Eigen::MatrixXd& x, const Signal& like) {
   SF_INFO info{};
   info.samplerate = int(std::lround(like.sample_rate));
   info.channels = int(x.cols());
   info.format = like.sndfile_format;
-  SNDFILE* file = sf_open(tmp.c_str(), SFM_WRITE, &info);
-  if (!file) return false;
+  SNDFILE* file = sf_open_fd(fd, SFM_WRITE, &info, SF_FALSE);
+  if (!file) return sf_strerror(nullptr);
   if (like.channel_names != default_signal_channel_names(int(x.cols())) &&
       int(like.channel_names.size()) == int(x.cols())) {
     std::string comment = kChannelComment;
@@ -482,8 +483,10 @@ bool write_sndfile(const std::string& tmp, const Eigen::MatrixXd& x, const Signa
     const sf_count_t wrote = integer ? sf_writef_int(file, ints.data(), n) : sf_writef_double(file, reals.data(), n);
     ok = wrote == n;
   }
+  const std::string reason = ok ? "" : sf_strerror(file);
   const bool closed = sf_close(file) == 0;
-  return ok && closed;
+  if (!reason.empty() || closed) return reason;
+  return sf_strerror(nullptr);
 }
 
 }  // namespace
@@ -566,13 +569,13 @@ void write_signal(const std::string& path, const Eigen::MatrixXd& samples, const
   switch (like.format) {
     case SignalFormat::csv: write_file_atomic(path, encode_csv(x, like)); break;
     case SignalFormat::raw: write_file_atomic(path, encode_raw(x, like)); break;
-    case SignalFormat::sndfile:
-      try {
-        write_via_temporary(path, [&](const std::string& tmp) { return write_sndfile(tmp, x, like); });
-      } catch (const Error&) {
-        throw data_error(path + ": cannot write " + describe_format(like) + " (" + sf_strerror(nullptr) + ")");
-      }
+    case SignalFormat::sndfile: {
+      AtomicFile file(path);
+      const std::string reason = write_sndfile(file.fd(), x, like);
+      if (!reason.empty()) throw data_error(path + ": cannot write " + describe_format(like) + " (" + reason + ")");
+      file.commit();
       break;
+    }
   }
 }
 

@@ -45,19 +45,6 @@ class SsimMapWriter {
   std::vector<std::uint16_t> row_;
 };
 
-namespace {
-
-// Copies a finished file onto another name, atomically.
-void copy_file_atomic(const std::string& from, const std::string& to) {
-  write_via_temporary(to, [&](const std::string& temporary) {
-    std::error_code ec;
-    std::filesystem::copy_file(from, temporary, std::filesystem::copy_options::overwrite_existing, ec);
-    return !ec;
-  });
-}
-
-}  // namespace
-
 SweepFolderImages::SweepFolderImages(std::string dir, bool ssim_maps, const PngWriteOptions& png)
     : dir_(std::move(dir)), ssim_maps_(ssim_maps), png_(png) {}
 
