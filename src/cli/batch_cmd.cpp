@@ -9,6 +9,7 @@
 #include "core/error.hpp"
 #include "pipeline/batch_study.hpp"
 #include "present/batch_outputs.hpp"
+#include "present/output_folder.hpp"
 #include "present/batch_tables.hpp"
 
 namespace pcasweep::cli {
@@ -162,6 +163,7 @@ void print_outcome(const BatchArgs& a, const BatchStudy& study, const BatchSetti
 int run_batch_command(const BatchArgs& a) {
   const BatchSettings s = batch_settings(a);
   const CollectedInputs inputs = batch_inputs(a);
+  const OutputFolder out(a.out);  // an unwritable --out stops the batch now, not after the sweep
   ProgressDisplay progress(ProgressDisplay::detect(a.quiet));
   const BatchStudy study = study_batch(inputs, s, [&](const BatchProgress& p) { progress.update(p); });
   progress.finish();
