@@ -9,6 +9,7 @@
 #include <fstream>
 #include <memory>
 #include <sstream>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include "core/error.hpp"
@@ -38,7 +39,17 @@ int write_all(int fd, const char* p, std::size_t n) {
 
 }  // namespace
 
-AtomicFile::AtomicFile(std::string path) : path_(std::move(path)), temporary_(temporary_name(path_)) {
+AtomicFile::AtomicFile(std::string path) : path_(std::move(path)) {
+  struct stat st {};
+  if (::stat(path_.c_str(), &st) == 0 && !S_ISREG(st.st_mode) && !S_ISDIR(st.st_mode)) {
+    // A device or a pipe (/dev/null, /dev/full, a FIFO): written in place; renaming a
+    // temporary onto it would replace the device node with a regular file.
+    fd_ = ::open(path_.c_str(), O_WRONLY | O_CLOEXEC);
+    if (fd_ < 0) throw data_error(path_ + ": cannot write: " + std::strerror(errno));
+    buffer_.reserve(kBufferBytes);
+    return;
+  }
+  temporary_ = temporary_name(path_);
   fd_ = create_registered_temporary(temporary_, &slot_);
   if (fd_ < 0) {
     const int err = errno;
@@ -84,6 +95,10 @@ void AtomicFile::commit() {
   const int fd = fd_;
   fd_ = -1;
   if (::close(fd) != 0) fail(errno);
+  if (temporary_.empty()) {  // written in place
+    committed_ = true;
+    return;
+  }
   if (::rename(temporary_.c_str(), path_.c_str()) != 0) fail(errno);
   committed_ = true;
   forget_temporary(slot_);

@@ -7,6 +7,9 @@
 // line naming <path> and the reason (strerror: "No space left on device",
 // "File too large", "Not a directory", ...); <path> is then either absent or
 // holds its previous content. Every file pcasweep writes goes through here.
+// A path that exists and is neither a regular file nor a folder (/dev/null,
+// /dev/full, a named pipe) is written in place instead: there is nothing to
+// rename onto a device, and renaming would replace it with a regular file.
 #pragma once
 
 #include <cstddef>
