@@ -10,6 +10,7 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
   if (size < 1) return 0;
   pcasweep::ImageReadOptions options;
   options.drop_alpha = (data[0] & 1) != 0;
+  options.max_pixels = std::uint64_t(1) << 20;
   const std::string bytes = pcasweep::fuzz::as_bytes(data + 1, size - 1);
   pcasweep::fuzz::refused_or_read([&] {
     const pcasweep::Image image = pcasweep::decode_image(bytes, "fuzz.img", options);

@@ -5,6 +5,7 @@
 #include <random>
 
 #include "measure/choose_k.hpp"
+#include "../support/reference_decompositions.hpp"
 
 using namespace pcasweep;
 
@@ -24,8 +25,7 @@ Basis spectrum_basis(std::vector<double> eigenvalues, Eigen::Index d, Eigen::Ind
 Basis basis_of(const Eigen::MatrixXd& X) {
   Eigen::MatrixXd c = X.rowwise() - X.colwise().mean();
   const Eigen::MatrixXd cov = (c.transpose() * c) / double(X.rows() - 1);
-  Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(cov, Eigen::EigenvaluesOnly);
-  Eigen::VectorXd ev = es.eigenvalues().reverse().cwiseMax(0.0);
+  Eigen::VectorXd ev = pcasweep::testing::reference_eigenvalues_decreasing(cov).cwiseMax(0.0);
   std::vector<double> v(ev.data(), ev.data() + ev.size());
   return spectrum_basis(v, X.cols(), X.rows(), cov.trace());
 }

@@ -4,7 +4,6 @@
 #include <doctest/doctest.h>
 #include <omp.h>
 
-#include <Eigen/SVD>
 #include <cmath>
 
 #include "core/error.hpp"
@@ -13,6 +12,7 @@
 #include "solve/randomized.hpp"
 #include "solve/solver.hpp"
 #include "../support/spectra.hpp"
+#include "../support/reference_decompositions.hpp"
 
 using namespace pcasweep;
 using pcasweep::testing::centred;
@@ -40,7 +40,7 @@ TEST_CASE("randomized: exact-rank matrix recovered as BDCSVD gives it (1e-10)") 
   s << 50, 30, 20, 9, 5, 2, 1;
   const Eigen::MatrixXd a = with_spectrum(n, d, s, 11);
   const Eigen::MatrixXd ac = centred(a);
-  Eigen::BDCSVD<Eigen::MatrixXd> ref(ac, Eigen::ComputeThinV);
+  const testing::ReferenceSvd ref = testing::reference_svd(ac, true);
   DenseOperator op(a);
   const auto [b, b_report] = solve_randomized(op, settings_for(10));
   REQUIRE(b.rank() == 10);
@@ -62,7 +62,7 @@ TEST_CASE("randomized: decaying spectrum, default settings within (1+1e-3) of op
   const Eigen::VectorXd s = geometric_spectrum(d, 1.0, 0.9);
   const Eigen::MatrixXd a = with_spectrum(n, d, s, 21);
   const Eigen::MatrixXd ac = centred(a);
-  Eigen::BDCSVD<Eigen::MatrixXd> ref(ac);
+  const testing::ReferenceSvd ref = testing::reference_svd(ac);
   const double optimal = std::sqrt(ref.singularValues().tail(d - k).squaredNorm());
   DenseOperator op(a);
   const auto [b, b_report] = solve_randomized(op, settings_for(k));
@@ -85,7 +85,7 @@ TEST_CASE("randomized: q = 0 respects the HMT Theorem 10.6 expectation bound (lo
   const Eigen::VectorXd s = Eigen::VectorXd::LinSpaced(d, 1, double(d)).cwiseInverse();  // σ_j = 1/j: slow decay
   const Eigen::MatrixXd a = with_spectrum(n, d, s, 31);
   const Eigen::MatrixXd ac = centred(a);
-  Eigen::BDCSVD<Eigen::MatrixXd> ref(ac);
+  const testing::ReferenceSvd ref = testing::reference_svd(ac);
   const Eigen::VectorXd sv = ref.singularValues();
   const double bound = (1.0 + std::sqrt(double(k) / double(p - 1))) * sv(k) +
                        std::exp(1.0) * std::sqrt(double(k + p)) / double(p) * std::sqrt(sv.tail(d - k).squaredNorm());
@@ -100,7 +100,7 @@ TEST_CASE("randomized: q = 0 respects the HMT Theorem 10.6 expectation bound (lo
     const auto [b, b_report] = solve_randomized(op, rs);
     CHECK(b_report.passes == 2);
     const Eigen::MatrixXd resid = ac - (ac * b.components) * b.components.transpose();
-    mean += Eigen::BDCSVD<Eigen::MatrixXd>(resid).singularValues()(0) / 10.0;
+    mean += testing::reference_svd(resid).values(0) / 10.0;
   }
   INFO("mean spectral error " << mean << ", bound " << bound << ", optimal " << sv(k));
   CHECK(mean <= bound);
@@ -176,7 +176,7 @@ TEST_CASE("randomized: bad input is refused with clear errors") {
 TEST_CASE("randomized: a subspace as wide as min(N, d) is exact after two passes") {
   const Eigen::MatrixXd a = gaussian_matrix(40, 25, 8);
   const Eigen::MatrixXd ac = centred(a);
-  Eigen::BDCSVD<Eigen::MatrixXd> ref(ac);
+  const testing::ReferenceSvd ref = testing::reference_svd(ac);
   DenseOperator op(a);
   const auto [b, b_report] = solve_randomized(op, settings_for(20));  // l = min(20 + 10, 25) = 25 = d
   CHECK(b_report.passes == 2);
@@ -207,7 +207,7 @@ TEST_CASE("randomized: wide data (N < d) keeps the accuracy of tall data") {
   s << 40, 25, 12, 6, 3, 1;
   const Eigen::MatrixXd a = with_spectrum(n, d, s, 61);
   const Eigen::MatrixXd ac = centred(a);
-  Eigen::BDCSVD<Eigen::MatrixXd> ref(ac, Eigen::ComputeThinV);
+  const testing::ReferenceSvd ref = testing::reference_svd(ac, true);
   DenseOperator op(a);
   const auto [b, b_report] = solve_randomized(op, settings_for(8));
   const Eigen::VectorXd sigma = (b.eigenvalues * double(n - 1)).cwiseSqrt();
@@ -222,7 +222,7 @@ TEST_CASE("randomized: wide data (N < d) keeps the accuracy of tall data") {
   const Eigen::VectorXd slow = Eigen::VectorXd::LinSpaced(n, 1, double(n)).cwiseInverse();
   const Eigen::MatrixXd w = with_spectrum(n, d, slow, 62);
   const Eigen::MatrixXd wc = centred(w);
-  const Eigen::VectorXd sv = Eigen::BDCSVD<Eigen::MatrixXd>(wc).singularValues();
+  const Eigen::VectorXd sv = testing::reference_svd(wc).values;
   DenseOperator wop(w);
   const auto [bw, bw_report] = solve_randomized(wop, settings_for(k));
   const double optimal = std::sqrt(sv.tail(sv.size() - k).squaredNorm());
@@ -274,7 +274,7 @@ TEST_CASE("solve: a single-precision solve whose tail lies below float32 roundin
   CHECK(redone_report.precision == "double");
   CHECK(redone_report.reason.find("after a single-precision solve") != std::string::npos);
   // Redone in double, the rank-30 error is near optimal again (reference: BDCSVD).
-  const Eigen::BDCSVD<Eigen::MatrixXd> ref(a);
+  const testing::ReferenceSvd ref = testing::reference_svd(a);
   const double optimal = std::sqrt(ref.singularValues().tail(ref.singularValues().size() - 30).squaredNorm());
   CHECK(projection_error(a, redone.components) <= (1.0 + 1e-3) * optimal);
 }

@@ -9,6 +9,7 @@
 #include "solve/operator.hpp"
 #include "solve/randomized.hpp"
 #include "solve/scatter_sum.hpp"
+#include "../support/reference_decompositions.hpp"
 
 using namespace pcasweep;
 
@@ -93,8 +94,7 @@ TEST_CASE("scatter sum: the exact solver on the sum = the covariance of all rows
   const Eigen::RowVectorXd mean = f.all.colwise().mean();
   const Eigen::MatrixXd centred = f.all.rowwise() - mean;
   const Eigen::MatrixXd covariance = centred.transpose() * centred / double(f.all.rows() - 1);
-  const Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> reference(covariance);
-  const Eigen::VectorXd expected = reference.eigenvalues().reverse();  // decreasing
+  const Eigen::VectorXd expected = testing::reference_eigenvalues_decreasing(covariance);
   CHECK(report.solver == "exact");
   CHECK(basis.observation_count == f.all.rows());
   CHECK(relative(basis.eigenvalues, expected) < 1e-12);

@@ -13,7 +13,6 @@
 // below 1e-4 over the ~1e6 entries checked here (a union bound).
 #include <doctest/doctest.h>
 
-#include <Eigen/SVD>
 #include <cmath>
 #include <string>
 
@@ -21,6 +20,7 @@
 #include "solve/randomized.hpp"
 #include "solve/solver.hpp"
 #include "../support/spectra.hpp"
+#include "../support/reference_decompositions.hpp"
 
 using namespace pcasweep;
 using pcasweep::testing::centred;
@@ -282,7 +282,7 @@ TEST_CASE("single: randomized solve of a decaying spectrum with single products 
   CAPTURE(ratio);
   REQUIRE(ratio > 2.0);
   REQUIRE(ratio < 8.0);
-  Eigen::BDCSVD<Eigen::MatrixXd> ref(ac);
+  const testing::ReferenceSvd ref = testing::reference_svd(ac);
   const Eigen::VectorXd sv = ref.singularValues();
   // Reference: the optimal rank-k error (Eckart–Young) from BDCSVD's σ.
   const double optimal = std::sqrt(sv.tail(d - k).squaredNorm());
@@ -339,7 +339,7 @@ TEST_CASE("single: wide data (N < d: observation side and fused A_c·A_cᵀ swee
   const Eigen::MatrixXd a = with_spectrum(n, d, s, 41, 1.0, 2.0);
   const Eigen::MatrixXd ac = centred(a);
   CAPTURE(a.norm() / ac.norm());
-  const Eigen::VectorXd sv = Eigen::BDCSVD<Eigen::MatrixXd>(ac).singularValues();
+  const Eigen::VectorXd sv = testing::reference_svd(ac).values;
   const auto [b, b_report] = solve(a, single_randomized(k));
   CHECK(b_report.precision == "single");
   const double eig_err = eigenvalue_error(b, sv, n, k);
