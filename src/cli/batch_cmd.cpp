@@ -98,11 +98,7 @@ nlohmann::json settings_json(const BatchArgs& a, const BatchSettings& s) {
   }
   j["threads"] = s.threads;
   j["quality"] = a.quality > 0 ? nlohmann::json(a.quality) : nlohmann::json();
-  const PatchOptions& p = s.image.patch;
-  j["layout_text"] = std::to_string(p.patch_height) + "x" + std::to_string(p.patch_width) + " patches, stride " +
-                     std::to_string(p.stride_y ? p.stride_y : p.patch_height) + "x" +
-                     std::to_string(p.stride_x ? p.stride_x : p.patch_width) + ", " +
-                     (p.colour == ColourMode::joint ? "joint colour" : "channels share one basis");
+  j["layout_text"] = patch_layout_text(s.image.patch);
   return j;
 }
 

@@ -95,7 +95,7 @@ int demo_batch(const std::vector<std::string>& images, const ImageStudySettings&
   batch.target.psnr_db = kDefaultBatchTargetPsnr;  // as `batch` with no --target-psnr
   batch.settings_json = image_settings_json(settings);
   batch.settings_json["inputs"] = images;
-  batch.settings_json["layout_text"] = "8x8 patches (default), per-file basis";
+  batch.settings_json["layout_text"] = patch_layout_text(settings.patch);  // as `batch` words it
   CollectedInputs inputs;
   inputs.files = images;
   const BatchStudy study = study_batch(inputs, batch);

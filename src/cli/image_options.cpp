@@ -101,4 +101,11 @@ nlohmann::json image_settings_json(const ImageStudySettings& s) {
           {"max_pixels", s.max_pixels}};
 }
 
+std::string patch_layout_text(const PatchOptions& p) {
+  return std::to_string(p.patch_height) + "x" + std::to_string(p.patch_width) + " patches, stride " +
+         std::to_string(p.stride_y ? p.stride_y : p.patch_height) + "x" +
+         std::to_string(p.stride_x ? p.stride_x : p.patch_width) + ", " +
+         (p.colour == ColourMode::joint ? "joint colour" : "channels share one basis");
+}
+
 }  // namespace pcasweep::cli

@@ -39,4 +39,8 @@ ImageStudySettings image_settings(const ImageOptionText& text);
 // The settings as JSON, for summary.json.
 nlohmann::json image_settings_json(const ImageStudySettings& settings);
 
+// The patch layout in words for the batch report's "Layout" row, from the options actually in
+// force, e.g. "8x8 patches, stride 8x8, joint colour". Shared by `batch` and `demo`.
+std::string patch_layout_text(const PatchOptions& p);
+
 }  // namespace pcasweep::cli
