@@ -285,6 +285,18 @@ void check_complete_tga(const std::string& file, const std::string& name, std::u
   check_tga_tail(file, name, start + pixels * pixel_bytes);
 }
 
+// True for bytes that stb_image would try as a JPEG: 0xFF, any further 0xFF fill bytes, then
+// 0xD8 (stb_image 2.27's marker reader skips fill bytes before SOI; libjpeg accepts only FF D8
+// and refuses the rest with a message).
+bool starts_like_jpeg(const std::string& file) {
+  const auto* b = reinterpret_cast<const unsigned char*>(file.data());
+  const std::size_t n = file.size();
+  if (n < 2 || b[0] != 0xFF) return false;
+  std::size_t i = 1;
+  while (i < n && b[i] == 0xFF) ++i;
+  return i < n && b[i] == 0xD8;
+}
+
 // The name of the format stb_image will decode `file` as, for messages: "BMP", "TGA" or "image".
 std::string stb_format_name(const std::string& file) {
   const auto* b = reinterpret_cast<const unsigned char*>(file.data());
@@ -309,9 +321,10 @@ Image decode_image(const std::string& bytes, const std::string& name, const Imag
   if (bytes.empty()) throw data_error(name + ": empty file");
   if (has_png_signature(bytes.data(), bytes.size())) return decode_png(bytes, name, options);
   // JPEG (SOI marker, ITU-T T.81 B.1.1.3) through libjpeg-turbo, strict: stb_image decodes damaged
-  // entropy-coded data without a word.
-  if (bytes.size() >= 2 && static_cast<unsigned char>(bytes[0]) == 0xFF && static_cast<unsigned char>(bytes[1]) == 0xD8)
-    return decode_jpeg(bytes, name, options);
+  // entropy-coded data without a word, and its Huffman table builder reads past its arrays on a
+  // hostile DHT segment (found by fuzz/image_fuzz.cpp). Everything stb_image would take for a JPEG
+  // goes to libjpeg, which refuses what it does not read.
+  if (starts_like_jpeg(bytes)) return decode_jpeg(bytes, name, options);
   {
     Image pnm;
     if (decode_binary_pnm(bytes, name, options.max_pixels, pnm)) return pnm;  // no alpha in P5/P6

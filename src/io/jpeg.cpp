@@ -115,12 +115,21 @@ std::string encode_jpeg(const Image& image, int quality) {
   return encode_jpeg(image, options);
 }
 
+// Owns libjpeg's decompressor: destroyed here, so a constructor of JpegRowReader that throws
+// (a damaged header, a refused size) frees it too, through the unique_ptr member; the
+// reader's own destructor does not run in that case.
 struct JpegRowReader::State {
   jpeg_decompress_struct cinfo{};
   ErrorManager errors;
   std::string name;
   std::vector<JSAMPLE> row;
   bool created = false;
+  State() = default;
+  State(const State&) = delete;
+  State& operator=(const State&) = delete;
+  ~State() {
+    if (created) jpeg_destroy_decompress(&cinfo);
+  }
 };
 
 namespace {
@@ -181,9 +190,7 @@ JpegRowReader::JpegRowReader(std::string_view bytes, const std::string& name, co
   s.row.resize(std::size_t(s.cinfo.output_width) * s.cinfo.output_components);
 }
 
-JpegRowReader::~JpegRowReader() {
-  if (state_ && state_->created) jpeg_destroy_decompress(&state_->cinfo);
-}
+JpegRowReader::~JpegRowReader() = default;  // State frees libjpeg's decompressor
 
 int JpegRowReader::width() const { return int(state_->cinfo.output_width); }
 int JpegRowReader::height() const { return int(state_->cinfo.output_height); }

@@ -134,6 +134,27 @@ TEST_CASE("damaged images: every cut of every image format is refused with one l
   }
 }
 
+// stb_image 2.27 takes 0xFF fill bytes before SOI for a JPEG and then reads past its Huffman
+// arrays on a hostile DHT segment (fuzz/image_fuzz.cpp found it; the bytes below are the shape of
+// that input). Such a file must reach libjpeg-turbo, which refuses it: a JPEG starts FF D8
+// (ITU-T T.81 B.1.1.3; libjpeg's "Not a JPEG file").
+TEST_CASE("damaged images: fill bytes before a JPEG's SOI are refused by libjpeg, never read by stb_image") {
+  const std::string jpg = encode_jpeg(scene_image(19, 13, 3, 8, 11), JpegOptions{});
+  for (std::size_t fill : {1u, 2u, 27u}) {
+    const std::string padded = std::string(fill, '\xFF') + jpg;
+    std::string message;
+    try {
+      decode_image(padded, "fill.jpg");
+    } catch (const Error& e) {
+      message = e.what();
+    }
+    CAPTURE(fill);
+    CHECK(message.find("fill.jpg") == 0);
+    CHECK(message.find("JPEG") != std::string::npos);
+    CHECK(message.find('\n') == std::string::npos);
+  }
+}
+
 TEST_CASE("damaged images: a PNG with a bad ancillary CRC or a bad Adler-32 is refused") {
   // ISO/IEC 15948: every chunk ends with the CRC-32 of its type and data; the zlib stream
   // (RFC 1950) ends with the Adler-32 of the filtered rows.
