@@ -329,6 +329,11 @@ Image decode_image(const std::string& bytes, const std::string& name, const Imag
     Image pnm;
     if (decode_binary_pnm(bytes, name, options.max_pixels, pnm)) return pnm;  // no alpha in P5/P6
   }
+  // stb_image also decodes GIF, PSD, HDR and PIC, which we do not claim to read: its PSD reader
+  // converts out-of-range floats to bytes (UBSan, found by fuzz/image_fuzz.cpp). Only BMP and TGA
+  // go on to stb_image.
+  if (stb_format_name(bytes) == "image")
+    throw data_error(name + ": not a readable PNG, JPEG, BMP, TGA or PNM image (GIF, PSD, HDR and PIC are not read)");
   const auto* data = reinterpret_cast<const stbi_uc*>(bytes.data());
   if (bytes.size() > std::size_t(INT32_MAX)) throw data_error(name + ": file too large");
   const int len = static_cast<int>(bytes.size());
