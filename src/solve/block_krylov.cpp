@@ -23,11 +23,11 @@
 // SVD of one more product when the Gram matrix cannot resolve them). What the
 // run is asked (KrylovProblem), the space it builds (KrylovSpace) and how it
 // went (KrylovStatus, reported in the SolveReport) are kept apart.
-#include <Eigen/SVD>
 #include <algorithm>
 #include <limits>
 
 #include "solve/randomized_detail.hpp"
+#include "solve/small_svd.hpp"
 #include "solve/symmetric_eigen.hpp"
 
 namespace pcasweep::detail {
@@ -266,12 +266,12 @@ RitzAnswer resolve_by_svd(const KrylovProblem& p, KrylovSpace& s, const Eigen::M
     s.ys.clear();
   }
   const Eigen::MatrixXd r = orthonormalize(y_l);
-  const Eigen::BDCSVD<Eigen::MatrixXd> svd(r, Eigen::ComputeFullU | Eigen::ComputeFullV);
+  const SmallSvd svd = small_svd(r);
   // Variable side: A_c·V_l = Q·U_r·Σ·V_rᵀ, so A_c's right singular vectors are V_l·V_r.
   // Observation side: A_cᵀ·U_l = Q·U_r·Σ·V_rᵀ, so they are Q·U_r.
-  return {svd.singularValues().array().square(),
-          p.right_side ? Eigen::MatrixXd(v_l * svd.matrixV().leftCols(p.k))
-                       : Eigen::MatrixXd(y_l * svd.matrixU().leftCols(p.k))};
+  return {svd.values.array().square(),
+          p.right_side ? Eigen::MatrixXd(v_l * svd.V.leftCols(p.k))
+                       : Eigen::MatrixXd(y_l * svd.U.leftCols(p.k))};
 }
 
 // Rayleigh–Ritz: G = S·Θ·Sᵀ, and the l leading Ritz vectors V_l = K·S_l span

@@ -6,11 +6,11 @@
 // singular vectors. Also used, with q = 0, when the sample is as wide as
 // min(N, d): two passes are then exact. Steps: start (Q from A_c·Ω), pass
 // (one product, orthonormalised, and the small SVD of its factor), finish.
-#include <Eigen/SVD>
 #include <algorithm>
 #include <limits>
 
 #include "solve/randomized_detail.hpp"
+#include "solve/small_svd.hpp"
 
 namespace pcasweep::detail {
 
@@ -22,7 +22,7 @@ struct PowerState {
   Eigen::MatrixXd w;       // d×l, orthonormal: the newest right factor
   Eigen::MatrixXd w_used;  // the W that made the newest Q
   bool last_on_right = false;
-  Eigen::BDCSVD<Eigen::MatrixXd> svd;       // of the newest R
+  SmallSvd svd;                             // of the newest R
   Eigen::VectorXd sigma2, previous_sigma2;  // σ² of the newest R and of the one before
 };
 
@@ -54,9 +54,9 @@ void pass(const CenteredOperator& op, Eigen::Index k, double frobenius2, PowerSt
   }
   s.last_on_right = !s.last_on_right;
   ++status.passes;
-  s.svd.compute(r, Eigen::ComputeFullU | Eigen::ComputeFullV);
+  s.svd = small_svd(r);
   s.previous_sigma2 = s.sigma2;
-  s.sigma2 = s.svd.singularValues().array().square();
+  s.sigma2 = s.svd.values.array().square();
   status.errors.push_back(std::max(0.0, frobenius2 - s.sigma2.head(k).sum()));
   if (s.previous_sigma2.size() == s.sigma2.size())
     status.change = ((s.sigma2.head(k) - s.previous_sigma2.head(k)).array().abs() /
@@ -67,8 +67,8 @@ void pass(const CenteredOperator& op, Eigen::Index k, double frobenius2, PowerSt
 // σ²/(N−1), and the report's figures.
 void finish(const CenteredOperator& op, Eigen::Index k, Eigen::Index l, double frobenius2, const PowerState& s,
             const PowerStatus& status, Solution& out) {
-  Eigen::MatrixXd right = s.last_on_right ? Eigen::MatrixXd(s.w * s.svd.matrixU().leftCols(k))
-                                          : Eigen::MatrixXd(s.w_used * s.svd.matrixV().leftCols(k));
+  Eigen::MatrixXd right = s.last_on_right ? Eigen::MatrixXd(s.w * s.svd.U.leftCols(k))
+                                          : Eigen::MatrixXd(s.w_used * s.svd.V.leftCols(k));
   apply_sign_convention(right);
   out.basis.components = std::move(right);
   out.basis.eigenvalues = s.sigma2.head(k) / double(op.rows() - 1);

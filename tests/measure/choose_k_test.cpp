@@ -6,6 +6,7 @@
 
 #include "measure/choose_k.hpp"
 #include "../support/reference_decompositions.hpp"
+#include "../support/spectra.hpp"
 
 using namespace pcasweep;
 
@@ -71,9 +72,8 @@ TEST_CASE("Gavish-Donoho finds rank 5 in a 500x500 rank-5 matrix plus white nois
       for (Eigen::Index i = 0; i < r; ++i) m(i, j) = g(rng);
     return m;
   };
-  Eigen::HouseholderQR<Eigen::MatrixXd> qu(gauss(n, 5)), qv(gauss(d, 5));
-  const Eigen::MatrixXd U = qu.householderQ() * Eigen::MatrixXd::Identity(n, 5);
-  const Eigen::MatrixXd V = qv.householderQ() * Eigen::MatrixXd::Identity(d, 5);
+  const Eigen::MatrixXd U = testing::orthonormal_columns(gauss(n, 5));
+  const Eigen::MatrixXd V = testing::orthonormal_columns(gauss(d, 5));
   Eigen::VectorXd s(5);
   s << 600, 500, 400, 300, 200;
   const Eigen::MatrixXd X = U * s.asDiagonal() * V.transpose() + gauss(n, d);
