@@ -75,7 +75,7 @@ void check_fused_against_plain(const Eigen::MatrixXd& a, Eigen::Index k, const s
   LoggingFusedOperator fused(a);
   const auto [ref, ref_report] = solve_randomized(plain, s);
   const auto [b, b_report] = solve_randomized(fused, s);
-  // Named copies: doctest's INFO captures by reference, and clang before 16 cannot capture a structured binding.
+  // Named copies: doctest's INFO captures by reference, and clang 14 cannot capture a structured binding.
   const int passes = b_report.passes, ref_passes = ref_report.passes;
   INFO("calls " << fused.log << ", passes " << passes << " (plain operator " << ref_passes << ")");
   // Both ways of making a block were taken (this spectrum converges more

@@ -67,7 +67,7 @@ TEST_CASE("randomized: decaying spectrum, default settings within (1+1e-3) of op
   DenseOperator op(a);
   const auto [b, b_report] = solve_randomized(op, settings_for(k));
   const double ours = projection_error(ac, b.components);
-  const int passes = b_report.passes;  // INFO captures by reference; clang < 16 cannot capture a structured binding
+  const int passes = b_report.passes;  // INFO captures by reference; clang 14 cannot capture a structured binding
   INFO("ours " << ours << " optimal " << optimal << " passes " << passes);
   CHECK(ours <= (1.0 + 1e-3) * optimal);
   CHECK(b_report.converged);
@@ -227,7 +227,7 @@ TEST_CASE("randomized: wide data (N < d) keeps the accuracy of tall data") {
   DenseOperator wop(w);
   const auto [bw, bw_report] = solve_randomized(wop, settings_for(k));
   const double optimal = std::sqrt(sv.tail(sv.size() - k).squaredNorm());
-  const int passes = bw_report.passes;  // INFO captures by reference; clang < 16 cannot capture a structured binding
+  const int passes = bw_report.passes;  // INFO captures by reference; clang 14 cannot capture a structured binding
   INFO("passes " << passes);
   CHECK(projection_error(wc, bw.components) <= (1.0 + 1e-3) * optimal);
   CHECK(bw_report.converged);

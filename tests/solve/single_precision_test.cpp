@@ -292,7 +292,7 @@ TEST_CASE("single: randomized solve of a decaying spectrum with single products 
   CHECK(b_report.reason.find("although single") == std::string::npos);
   REQUIRE(b.rank() == k);
   const double ours = (ac - (ac * b.components) * b.components.transpose()).norm();
-  const int passes = b_report.passes;  // INFO captures by reference; clang < 16 cannot capture a structured binding
+  const int passes = b_report.passes;  // INFO captures by reference; clang 14 cannot capture a structured binding
   INFO("ours " << ours << " optimal " << optimal << " passes " << passes << " offset ratio " << ratio);
   CHECK(ours <= (1.0 + 1e-3) * optimal);
   CHECK(b_report.converged);
@@ -344,7 +344,7 @@ TEST_CASE("single: wide data (N < d: observation side and fused A_c·A_cᵀ swee
   const auto [b, b_report] = solve(a, single_randomized(k));
   CHECK(b_report.precision == "single");
   const double eig_err = eigenvalue_error(b, sv, n, k);
-  const int passes = b_report.passes;  // INFO captures by reference; clang < 16 cannot capture a structured binding
+  const int passes = b_report.passes;  // INFO captures by reference; clang 14 cannot capture a structured binding
   INFO("largest relative eigenvalue error " << eig_err << ", passes " << passes);
   CHECK(eig_err <= 1e-5);
   CHECK((b.components.transpose() * b.components - Eigen::MatrixXd::Identity(k, k)).cwiseAbs().maxCoeff() <= 1e-10);
