@@ -308,13 +308,6 @@ std::string stb_format_name(const std::string& file) {
   return other ? "image" : "TGA";  // TGA: what stb_image identifies by elimination
 }
 
-// Calls the completeness check of BMP or TGA (other stb formats check themselves).
-void check_complete_raster(const std::string& file, const std::string& name, std::uint64_t w, std::uint64_t h) {
-  const std::string kind = stb_format_name(file);
-  if (kind == "BMP") check_complete_bmp(file, name, w, h);
-  if (kind == "TGA") check_complete_tga(file, name, w, h);
-}
-
 }  // namespace
 
 Image decode_image(const std::string& bytes, const std::string& name, const ImageReadOptions& options) {
@@ -332,7 +325,8 @@ Image decode_image(const std::string& bytes, const std::string& name, const Imag
   // stb_image also decodes GIF, PSD, HDR and PIC, which we do not claim to read: its PSD reader
   // converts out-of-range floats to bytes (UBSan, found by fuzz/image_fuzz.cpp). Only BMP and TGA
   // go on to stb_image.
-  if (stb_format_name(bytes) == "image")
+  const std::string kind = stb_format_name(bytes);
+  if (kind == "image")
     throw data_error(name + ": not a readable PNG, JPEG, BMP, TGA or PNM image (GIF, PSD, HDR and PIC are not read)");
   const auto* data = reinterpret_cast<const stbi_uc*>(bytes.data());
   if (bytes.size() > std::size_t(INT32_MAX)) throw data_error(name + ": file too large");
@@ -349,7 +343,9 @@ Image decode_image(const std::string& bytes, const std::string& name, const Imag
   if (std::size_t(w) * std::size_t(h) * std::size_t(c) > kMaxImageSamples) {
     throw data_error(name + ": image too large (" + std::to_string(w) + "x" + std::to_string(h) + ")");
   }
-  check_complete_raster(bytes, name, std::uint64_t(w), std::uint64_t(h));
+  // BMP and TGA carry no checksum: the file must hold every row its header declares.
+  if (kind == "BMP") check_complete_bmp(bytes, name, std::uint64_t(w), std::uint64_t(h));
+  else check_complete_tga(bytes, name, std::uint64_t(w), std::uint64_t(h));
   const bool sixteen = stbi_is_16_bit_from_memory(data, len) != 0;
   Image image;
   void* pixels = sixteen ? static_cast<void*>(stbi_load_16_from_memory(data, len, &w, &h, &c, 0))
@@ -358,7 +354,6 @@ Image decode_image(const std::string& bytes, const std::string& name, const Imag
     // stb_image's reason is the last one any of its format tests set: after a
     // damaged JPEG it can be the PNG test's "bad png sig". Only a reason that
     // does not name another format is passed on.
-    const std::string kind = stb_format_name(bytes);
     std::string reason = stbi_failure_reason() ? stbi_failure_reason() : "";
     if (reason.find("png") != std::string::npos || reason.empty()) reason = "decoding stopped";
     throw data_error(name + ": corrupt or truncated " + kind + " (" + reason + ")");
